@@ -1,0 +1,132 @@
+//! The common trait behind every integrator.
+//!
+//! A [`Scheme`] owns the state `(t, y)` and its work arrays; it attempts one
+//! step of a given size, reports the weighted local error, and commits or
+//! discards it. The controller (in `ballast-switch`) owns the loop: step-size
+//! choice, stability caps, switching, output and termination. Schemes stay
+//! small.
+//!
+//! The trait is generic over the user's system `S` (so right-hand-side calls
+//! are monomorphised and inlined) and object-safe for a fixed `S`, so a
+//! controller can hold `Box<dyn Scheme<S>>`.
+
+use crate::method::Method;
+use crate::norm::ErrorNorm;
+use crate::problem::Problem;
+use crate::system::System;
+
+/// Why an attempted step failed before an error estimate existed.
+/// Every failure is recoverable by a smaller step; the controller decides
+/// when to give up.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum StepFailure {
+    /// The right-hand side or the step produced NaN or infinity.
+    NonFinite,
+    /// The Newton iteration diverged or converged too slowly.
+    NewtonFailed,
+    /// The iteration matrix was singular to working precision.
+    SingularMatrix,
+}
+
+/// The outcome of an attempted step that produced an error estimate.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Attempt {
+    /// Weighted RMS norm of the local error estimate; `<= 1` means accept.
+    /// Fixed-step methods without an estimate report 0.
+    pub error: f64,
+    /// A step-size factor the scheme itself proposes for the next step
+    /// (multistep order selection, slow Newton convergence). `None` lets the
+    /// controller's accuracy rule decide.
+    pub factor: Option<f64>,
+}
+
+impl Attempt {
+    /// An attempt with only an error estimate.
+    pub fn with_error(error: f64) -> Self {
+        Self {
+            error,
+            factor: None,
+        }
+    }
+}
+
+/// One integrator behind the common interface.
+///
+/// Protocol: [`start`](Scheme::start) once (or after a hand-over or a
+/// discontinuity), then repeatedly [`attempt`](Scheme::attempt) followed by
+/// [`accept`](Scheme::accept) or [`reject`](Scheme::reject). Dense output
+/// ([`interpolate`](Scheme::interpolate)) covers the last accepted step and
+/// is valid until the next `attempt`. No method allocates after `start`'s
+/// first call.
+pub trait Scheme<S: System> {
+    /// Which method this is.
+    fn method(&self) -> Method;
+
+    /// The current order of the propagated solution.
+    fn order(&self) -> usize;
+
+    /// The order `q` of the local error estimate's leading term, so that
+    /// the estimate scales like `h^(q+1)`. Step control uses exponent `1/(q+1)`.
+    fn error_order(&self) -> usize;
+
+    /// Whether the scheme solves (non)linear systems.
+    fn is_implicit(&self) -> bool;
+
+    /// Whether the scheme has an error estimate (fixed-step-only schemes do not).
+    fn has_error_estimate(&self) -> bool {
+        true
+    }
+
+    /// Sets the state to `(t, y)` and prepares to step from it. Used at the
+    /// start of a run, after a hand-over from another scheme, and after a
+    /// discontinuity. Multistep schemes restart at low order.
+    fn start(&mut self, p: &mut Problem<S>, t: f64, y: &[f64]) -> Result<(), StepFailure>;
+
+    /// Attempts one step of size `h` (negative when integrating backwards)
+    /// from the current state. Does not change the state until `accept`.
+    fn attempt(
+        &mut self,
+        p: &mut Problem<S>,
+        h: f64,
+        norm: &ErrorNorm,
+    ) -> Result<Attempt, StepFailure>;
+
+    /// Commits the last attempted step.
+    fn accept(&mut self, p: &mut Problem<S>);
+
+    /// Discards the last attempted step.
+    fn reject(&mut self);
+
+    /// Current time.
+    fn t(&self) -> f64;
+
+    /// Current state.
+    fn y(&self) -> &[f64];
+
+    /// `f(t, y)` at the current state, when the scheme has it (FSAL and
+    /// multistep schemes always do).
+    fn dydt(&self) -> Option<&[f64]>;
+
+    /// Start time of the last accepted step (equals `t()` before any step).
+    fn t_prev(&self) -> f64;
+
+    /// Writes the dense-output value at `t` within the last accepted step
+    /// `[t_prev, t]` into `out`. Outside it the polynomial is extrapolated.
+    fn interpolate(&self, t: f64, out: &mut [f64]);
+
+    /// Degree of the dense-output polynomial over the last step.
+    fn dense_degree(&self) -> usize;
+
+    /// Writes the dense output of the last accepted step as monomial
+    /// coefficients in `theta = (t - t_prev) / h`: `y(t_prev + theta h) =
+    /// sum_k c_k theta^k`, with `c_k` at `coeffs[k*n..(k+1)*n]` for
+    /// `k = 0..=dense_degree()`.
+    fn dense_coefficients(&self, coeffs: &mut [f64]);
+
+    /// A free estimate of the Jacobian's spectral radius from the last
+    /// attempted step's stages, `||k_i - k_j|| / ||Y_i - Y_j||` (Hairer and
+    /// Wanner II, IV.2), when the scheme can give one without extra work.
+    fn stage_spectral_estimate(&self) -> Option<f64> {
+        None
+    }
+}
