@@ -125,7 +125,10 @@ mod tests {
     fn factor_shrinks_on_large_error_and_grows_on_small() {
         let mut c = PiController::default();
         assert!(c.factor(4.0, 4, false) < 1.0);
-        assert!(c.factor(1e-4, 4, true) <= 1.0, "no growth right after a rejection");
+        assert!(
+            c.factor(1e-4, 4, true) <= 1.0,
+            "no growth right after a rejection"
+        );
         assert!(c.factor(1e-4, 4, true) > 1.0);
         assert!(c.factor(1e-30, 4, true) <= c.max_factor);
     }

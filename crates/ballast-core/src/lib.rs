@@ -9,7 +9,7 @@
 //! this crate directly to drive a scheme step by step or to add a method.
 //!
 //! ```
-//! use ballast_core::{explicit::{ExplicitRk, tableau::DORMAND_PRINCE_54}, Atol, ErrorNorm, Problem, Scheme};
+//! use ballast_core::{explicit::{ExplicitRk, tableau::DORMAND_PRINCE_54}, Atol, ErrorNorm, Problem, Scheme, SchemeState};
 //! // y' = -y, one step of size 0.1 from y(0) = 1.
 //! let mut p = Problem::new(|_t: f64, y: &[f64], dy: &mut [f64]| dy[0] = -y[0], 1);
 //! let mut rk = ExplicitRk::new(&DORMAND_PRINCE_54, 1);
@@ -36,5 +36,5 @@ pub use matrix::Jacobian;
 pub use method::{Method, SwitchPair};
 pub use norm::{Atol, ErrorNorm, Reduction};
 pub use problem::{Problem, WorkCounters};
-pub use scheme::{Attempt, Scheme, StepFailure};
+pub use scheme::{Attempt, Scheme, SchemeState, StepFailure};
 pub use system::{ByRef, SparsityPattern, Structure, System, WithJacobian, WithStructure};

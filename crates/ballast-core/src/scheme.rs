@@ -50,15 +50,9 @@ impl Attempt {
     }
 }
 
-/// One integrator behind the common interface.
-///
-/// Protocol: [`start`](Scheme::start) once (or after a hand-over or a
-/// discontinuity), then repeatedly [`attempt`](Scheme::attempt) followed by
-/// [`accept`](Scheme::accept) or [`reject`](Scheme::reject). Dense output
-/// ([`interpolate`](Scheme::interpolate)) covers the last accepted step and
-/// is valid until the next `attempt`. No method allocates after `start`'s
-/// first call.
-pub trait Scheme<S: System> {
+/// What every scheme tells about itself and its last step, independent of
+/// the system type: identity, orders, current state and dense output.
+pub trait SchemeState {
     /// Which method this is.
     fn method(&self) -> Method;
 
@@ -76,26 +70,6 @@ pub trait Scheme<S: System> {
     fn has_error_estimate(&self) -> bool {
         true
     }
-
-    /// Sets the state to `(t, y)` and prepares to step from it. Used at the
-    /// start of a run, after a hand-over from another scheme, and after a
-    /// discontinuity. Multistep schemes restart at low order.
-    fn start(&mut self, p: &mut Problem<S>, t: f64, y: &[f64]) -> Result<(), StepFailure>;
-
-    /// Attempts one step of size `h` (negative when integrating backwards)
-    /// from the current state. Does not change the state until `accept`.
-    fn attempt(
-        &mut self,
-        p: &mut Problem<S>,
-        h: f64,
-        norm: &ErrorNorm,
-    ) -> Result<Attempt, StepFailure>;
-
-    /// Commits the last attempted step.
-    fn accept(&mut self, p: &mut Problem<S>);
-
-    /// Discards the last attempted step.
-    fn reject(&mut self);
 
     /// Current time.
     fn t(&self) -> f64;
@@ -129,4 +103,33 @@ pub trait Scheme<S: System> {
     fn stage_spectral_estimate(&self) -> Option<f64> {
         None
     }
+}
+
+/// One integrator behind the common interface.
+///
+/// Protocol: [`start`](Scheme::start) once (or after a hand-over or a
+/// discontinuity), then repeatedly [`attempt`](Scheme::attempt) followed by
+/// [`accept`](Scheme::accept) or [`reject`](Scheme::reject). Dense output
+/// ([`SchemeState::interpolate`]) covers the last accepted step and is valid
+/// until the next `attempt`. Nothing allocates after construction.
+pub trait Scheme<S: System>: SchemeState {
+    /// Sets the state to `(t, y)` and prepares to step from it. Used at the
+    /// start of a run, after a hand-over from another scheme, and after a
+    /// discontinuity. Multistep schemes restart at low order.
+    fn start(&mut self, p: &mut Problem<S>, t: f64, y: &[f64]) -> Result<(), StepFailure>;
+
+    /// Attempts one step of size `h` (negative when integrating backwards)
+    /// from the current state. Does not change the state until `accept`.
+    fn attempt(
+        &mut self,
+        p: &mut Problem<S>,
+        h: f64,
+        norm: &ErrorNorm,
+    ) -> Result<Attempt, StepFailure>;
+
+    /// Commits the last attempted step.
+    fn accept(&mut self, p: &mut Problem<S>);
+
+    /// Discards the last attempted step.
+    fn reject(&mut self);
 }

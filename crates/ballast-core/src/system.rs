@@ -155,7 +155,7 @@ where
 /// use ballast_core::{System, WithJacobian, Jacobian};
 /// let mut sys = WithJacobian::new(
 ///     |_t: f64, y: &[f64], dy: &mut [f64]| dy[0] = -3.0 * y[0],
-///     |_t: f64, _y: &[f64], jac: &mut Jacobian| jac.set(0, 0, -3.0),
+///     |_t: f64, _y: &[f64], jac: &mut Jacobian| { jac.set(0, 0, -3.0); },
 /// );
 /// let mut jac = Jacobian::dense(1);
 /// assert!(sys.jacobian(0.0, &[1.0], &mut jac));

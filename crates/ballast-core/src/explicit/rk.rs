@@ -15,7 +15,7 @@ use super::tableau::Tableau;
 use crate::method::Method;
 use crate::norm::ErrorNorm;
 use crate::problem::Problem;
-use crate::scheme::{Attempt, Scheme, StepFailure};
+use crate::scheme::{Attempt, Scheme, SchemeState, StepFailure};
 use crate::system::System;
 
 /// An explicit Runge–Kutta scheme over a static tableau.
@@ -87,7 +87,7 @@ impl ExplicitRk {
     }
 }
 
-impl<S: System> Scheme<S> for ExplicitRk {
+impl SchemeState for ExplicitRk {
     fn method(&self) -> Method {
         self.tab.method
     }
@@ -107,119 +107,6 @@ impl<S: System> Scheme<S> for ExplicitRk {
     fn has_error_estimate(&self) -> bool {
         self.tab.e.is_some()
     }
-
-    fn start(&mut self, p: &mut Problem<S>, t: f64, y: &[f64]) -> Result<(), StepFailure> {
-        self.t = t;
-        self.t_prev = t;
-        self.y.copy_from_slice(y);
-        self.y_prev.copy_from_slice(y);
-        self.swapped_first = None;
-        self.h_last = 0.0;
-        p.rhs(t, &self.y, &mut self.k[0]);
-        self.have_f0 = true;
-        if self.k[0].iter().all(|v| v.is_finite()) {
-            Ok(())
-        } else {
-            self.have_f0 = false;
-            Err(StepFailure::NonFinite)
-        }
-    }
-
-    fn attempt(
-        &mut self,
-        p: &mut Problem<S>,
-        h: f64,
-        norm: &ErrorNorm,
-    ) -> Result<Attempt, StepFailure> {
-        let tab = self.tab;
-        let s = tab.stages();
-        let n = self.n;
-        if !self.have_f0 {
-            p.rhs(self.t, &self.y, &mut self.k[0]);
-            self.have_f0 = true;
-        }
-        // The stage buffers are in natural order again from here on.
-        self.swapped_first = None;
-        self.h = h;
-        for i in 1..s {
-            let (done, rest) = self.k.split_at_mut(i);
-            let target = if tab.fsal && i == s - 1 {
-                &mut self.y_new
-            } else {
-                &mut self.tmp
-            };
-            target.copy_from_slice(&self.y);
-            for (j, &aij) in tab.a[i].iter().enumerate() {
-                if aij != 0.0 {
-                    let ha = h * aij;
-                    let kj = &done[j];
-                    for m in 0..n {
-                        target[m] += ha * kj[m];
-                    }
-                }
-            }
-            p.rhs(self.t + tab.c[i] * h, target, &mut rest[0]);
-        }
-        if !tab.fsal {
-            self.y_new.copy_from_slice(&self.y);
-            for (j, &bj) in tab.b.iter().enumerate() {
-                if bj != 0.0 {
-                    let hb = h * bj;
-                    let kj = &self.k[j];
-                    for m in 0..n {
-                        self.y_new[m] += hb * kj[m];
-                    }
-                }
-            }
-        }
-        let error = match tab.e {
-            Some(e) => {
-                self.tmp.fill(0.0);
-                for (j, &ej) in e.iter().enumerate() {
-                    if ej != 0.0 {
-                        let he = h * ej;
-                        let kj = &self.k[j];
-                        for m in 0..n {
-                            self.tmp[m] += he * kj[m];
-                        }
-                    }
-                }
-                norm.rms(&self.tmp, &self.y, &self.y_new)
-            }
-            None => {
-                if self.y_new.iter().all(|v| v.is_finite()) {
-                    0.0
-                } else {
-                    f64::NAN
-                }
-            }
-        };
-        if error.is_finite() {
-            Ok(Attempt::with_error(error))
-        } else {
-            Err(StepFailure::NonFinite)
-        }
-    }
-
-    fn accept(&mut self, p: &mut Problem<S>) {
-        self.t_prev = self.t;
-        self.t += self.h;
-        self.h_last = self.h;
-        std::mem::swap(&mut self.y_prev, &mut self.y);
-        std::mem::swap(&mut self.y, &mut self.y_new);
-        let last = self.new_slope_index();
-        if !self.tab.fsal {
-            let (head, tail) = self.k.split_at_mut(last);
-            let _ = head;
-            p.rhs(self.t, &self.y, &mut tail[0]);
-        }
-        // f(t_{n+1}, y_{n+1}) becomes the next step's first stage.
-        self.k.swap(0, last);
-        self.swapped_first = Some(last);
-        self.have_f0 = true;
-    }
-
-    fn reject(&mut self) {}
 
     fn t(&self) -> f64 {
         self.t
@@ -350,4 +237,119 @@ impl<S: System> Scheme<S> for ExplicitRk {
             None
         }
     }
+}
+
+impl<S: System> Scheme<S> for ExplicitRk {
+    fn start(&mut self, p: &mut Problem<S>, t: f64, y: &[f64]) -> Result<(), StepFailure> {
+        self.t = t;
+        self.t_prev = t;
+        self.y.copy_from_slice(y);
+        self.y_prev.copy_from_slice(y);
+        self.swapped_first = None;
+        self.h_last = 0.0;
+        p.rhs(t, &self.y, &mut self.k[0]);
+        self.have_f0 = true;
+        if self.k[0].iter().all(|v| v.is_finite()) {
+            Ok(())
+        } else {
+            self.have_f0 = false;
+            Err(StepFailure::NonFinite)
+        }
+    }
+
+    fn attempt(
+        &mut self,
+        p: &mut Problem<S>,
+        h: f64,
+        norm: &ErrorNorm,
+    ) -> Result<Attempt, StepFailure> {
+        let tab = self.tab;
+        let s = tab.stages();
+        let n = self.n;
+        if !self.have_f0 {
+            p.rhs(self.t, &self.y, &mut self.k[0]);
+            self.have_f0 = true;
+        }
+        // The stage buffers are in natural order again from here on.
+        self.swapped_first = None;
+        self.h = h;
+        for i in 1..s {
+            let (done, rest) = self.k.split_at_mut(i);
+            let target = if tab.fsal && i == s - 1 {
+                &mut self.y_new
+            } else {
+                &mut self.tmp
+            };
+            target.copy_from_slice(&self.y);
+            for (j, &aij) in tab.a[i].iter().enumerate() {
+                if aij != 0.0 {
+                    let ha = h * aij;
+                    let kj = &done[j];
+                    for m in 0..n {
+                        target[m] += ha * kj[m];
+                    }
+                }
+            }
+            p.rhs(self.t + tab.c[i] * h, target, &mut rest[0]);
+        }
+        if !tab.fsal {
+            self.y_new.copy_from_slice(&self.y);
+            for (j, &bj) in tab.b.iter().enumerate() {
+                if bj != 0.0 {
+                    let hb = h * bj;
+                    let kj = &self.k[j];
+                    for m in 0..n {
+                        self.y_new[m] += hb * kj[m];
+                    }
+                }
+            }
+        }
+        let error = match tab.e {
+            Some(e) => {
+                self.tmp.fill(0.0);
+                for (j, &ej) in e.iter().enumerate() {
+                    if ej != 0.0 {
+                        let he = h * ej;
+                        let kj = &self.k[j];
+                        for m in 0..n {
+                            self.tmp[m] += he * kj[m];
+                        }
+                    }
+                }
+                norm.rms(&self.tmp, &self.y, &self.y_new)
+            }
+            None => {
+                if self.y_new.iter().all(|v| v.is_finite()) {
+                    0.0
+                } else {
+                    f64::NAN
+                }
+            }
+        };
+        if error.is_finite() {
+            Ok(Attempt::with_error(error))
+        } else {
+            Err(StepFailure::NonFinite)
+        }
+    }
+
+    fn accept(&mut self, p: &mut Problem<S>) {
+        self.t_prev = self.t;
+        self.t += self.h;
+        self.h_last = self.h;
+        std::mem::swap(&mut self.y_prev, &mut self.y);
+        std::mem::swap(&mut self.y, &mut self.y_new);
+        let last = self.new_slope_index();
+        if !self.tab.fsal {
+            let (head, tail) = self.k.split_at_mut(last);
+            let _ = head;
+            p.rhs(self.t, &self.y, &mut tail[0]);
+        }
+        // f(t_{n+1}, y_{n+1}) becomes the next step's first stage.
+        self.k.swap(0, last);
+        self.swapped_first = Some(last);
+        self.have_f0 = true;
+    }
+
+    fn reject(&mut self) {}
 }
