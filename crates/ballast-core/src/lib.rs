@@ -23,17 +23,21 @@
 #![forbid(unsafe_code)]
 #![deny(missing_docs)]
 
+pub mod build;
 pub mod control;
 pub mod explicit;
 pub mod matrix;
 pub mod method;
 pub mod norm;
+pub mod options;
 pub mod problem;
 pub mod scheme;
 pub mod system;
 
 pub use matrix::Jacobian;
+pub use build::{build, BuildError};
 pub use method::{Method, SwitchPair};
+pub use options::{ImplicitOptions, JacobianSource, SchemeOptions};
 pub use norm::{Atol, ErrorNorm, Reduction};
 pub use problem::{Problem, WorkCounters};
 pub use scheme::{Attempt, Scheme, SchemeState, StepFailure};

@@ -1,0 +1,41 @@
+//! Building a scheme for a method: the one place that maps [`Method`] to code.
+
+use crate::explicit::{tableau, ExplicitRk};
+use crate::method::Method;
+use crate::options::SchemeOptions;
+use crate::scheme::Scheme;
+use crate::system::{Structure, System};
+
+/// Why a scheme could not be built.
+#[derive(Clone, Debug, PartialEq, thiserror::Error)]
+#[non_exhaustive]
+pub enum BuildError {
+    /// The method is not a single scheme (switching is the controller's job).
+    #[error("{0} is not a single scheme; the switching controller builds its pair")]
+    NotASingleScheme(Method),
+    /// The options ask for something the system cannot give.
+    #[error("invalid scheme options: {0}")]
+    InvalidOptions(String),
+}
+
+/// Builds the scheme for `method` on a system of dimension `n` whose
+/// Jacobian has `structure`. All work arrays are allocated here.
+pub fn build<S: System>(
+    method: Method,
+    n: usize,
+    structure: &Structure,
+    opts: &SchemeOptions,
+) -> Result<Box<dyn Scheme<S>>, BuildError> {
+    let _ = (structure, opts);
+    let rk = |t: &'static tableau::Tableau| -> Result<Box<dyn Scheme<S>>, BuildError> {
+        Ok(Box::new(ExplicitRk::new(t, n)))
+    };
+    match method {
+        Method::ForwardEuler => rk(&tableau::FORWARD_EULER),
+        Method::Heun => rk(&tableau::HEUN),
+        Method::Rk4 => rk(&tableau::RK4),
+        Method::BogackiShampine32 => rk(&tableau::BOGACKI_SHAMPINE_32),
+        Method::DormandPrince54 => rk(&tableau::DORMAND_PRINCE_54),
+        other => Err(BuildError::NotASingleScheme(other)),
+    }
+}

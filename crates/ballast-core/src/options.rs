@@ -1,0 +1,45 @@
+//! Settings that shape how schemes are built (Jacobians, Newton, linear algebra).
+//!
+//! Defaults need no tuning; the facade's `Options` carries one of these.
+
+use crate::system::Structure;
+
+/// Where an implicit scheme gets its Jacobian from.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Default)]
+pub enum JacobianSource {
+    /// The system's analytic Jacobian when it provides one, else finite differences.
+    #[default]
+    Auto,
+    /// Always the system's analytic Jacobian (an error at start if it has none).
+    Analytic,
+    /// Always finite differences (grouped columns for banded or sparse structure).
+    FiniteDifference,
+}
+
+/// Settings for implicit schemes.
+#[derive(Clone, Debug, PartialEq)]
+pub struct ImplicitOptions {
+    /// Jacobian source.
+    pub jacobian: JacobianSource,
+    /// Overrides the structure the system declares (dense, banded, sparse).
+    pub structure: Option<Structure>,
+    /// Cap on Newton iterations per step (stage system).
+    pub max_newton_iters: usize,
+}
+
+impl Default for ImplicitOptions {
+    fn default() -> Self {
+        Self {
+            jacobian: JacobianSource::Auto,
+            structure: None,
+            max_newton_iters: 7,
+        }
+    }
+}
+
+/// Everything needed to build a scheme besides the method and the dimension.
+#[derive(Clone, Debug, PartialEq, Default)]
+pub struct SchemeOptions {
+    /// Settings for implicit schemes (ignored by explicit ones).
+    pub implicit: ImplicitOptions,
+}
