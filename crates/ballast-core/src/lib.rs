@@ -26,6 +26,7 @@
 pub mod build;
 pub mod control;
 pub mod explicit;
+pub mod implicit;
 pub mod matrix;
 pub mod method;
 pub mod norm;
