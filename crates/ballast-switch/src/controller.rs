@@ -1,0 +1,366 @@
+//! The step loop: accuracy control, stability caps, failure handling, switching.
+//!
+//! The controller owns the schemes, the step size and the counters; the
+//! caller asks it for one accepted step at a time ([`Controller::step`]) and
+//! reads dense output from [`Controller::scheme`] between steps. Output,
+//! events and breakpoints are the caller's business (the facade's).
+
+use ballast_core::control::{initial_step, PiController};
+use ballast_core::{
+    build, ErrorNorm, Method, Problem, Scheme, SchemeState, StepFailure, System, WorkCounters,
+};
+
+use crate::config::ControlConfig;
+use crate::error::{RunFailure, SetupError};
+use crate::switching::{SwitchRecord, Switcher};
+
+/// Consecutive failed attempts (NaN, Newton, singular matrix) tolerated in
+/// one step before the run gives up. Each failure shrinks the step, so 30
+/// failures span more than nine decades of step size.
+const MAX_CONSECUTIVE_FAILURES: usize = 30;
+
+/// Counters kept by the controller (the schemes' work is in [`WorkCounters`]).
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+pub struct ControlStats {
+    /// Accepted steps.
+    pub accepted: usize,
+    /// Steps rejected by the error test.
+    pub rejected: usize,
+    /// Attempts that failed before an error estimate (NaN, Newton, singular).
+    pub failed_attempts: usize,
+    /// Accepted explicit steps whose size the stability cap set.
+    pub stability_limited: usize,
+    /// Switches between schemes.
+    pub switches: usize,
+    /// Full spectral-radius estimates (power iterations).
+    pub spectral_estimates: usize,
+    /// Operator products spent on spectral estimates.
+    pub spectral_products: usize,
+}
+
+/// What happened in one accepted step.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct StepReport {
+    /// Start of the step.
+    pub t_prev: f64,
+    /// End of the step.
+    pub t: f64,
+    /// The step taken (signed).
+    pub h: f64,
+    /// Whether the stability cap set the step size.
+    pub capped: bool,
+    /// Whether the step reached the requested limit exactly.
+    pub reached_limit: bool,
+}
+
+/// Drives one scheme, or a switching pair, over a time span.
+pub struct Controller<S: System> {
+    problem: Problem<S>,
+    norm: ErrorNorm,
+    active: Box<dyn Scheme<S>>,
+    switcher: Switcher<S>,
+    cfg: ControlConfig,
+    pi: PiController,
+    direction: f64,
+    /// Magnitude of the next step the accuracy rule proposes.
+    h: f64,
+    stats: ControlStats,
+}
+
+impl<S: System> std::fmt::Debug for Controller<S> {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.debug_struct("Controller")
+            .field("method", &self.active.method())
+            .field("t", &self.active.t())
+            .field("h", &self.h)
+            .field("stats", &self.stats)
+            .finish()
+    }
+}
+
+impl<S: System> Controller<S> {
+    /// Sets up a run of `system` from `(t0, y0)` towards `t_end` (either
+    /// direction). Inputs must already be validated (finite, consistent
+    /// sizes, positive tolerances): the facade checks them at the door.
+    pub fn new(
+        system: S,
+        t0: f64,
+        y0: &[f64],
+        t_end: f64,
+        norm: ErrorNorm,
+        cfg: ControlConfig,
+    ) -> Result<Self, SetupError> {
+        let n = y0.len();
+        let structure = cfg
+            .scheme
+            .implicit
+            .structure
+            .clone()
+            .unwrap_or_else(|| system.structure());
+        let mut problem = Problem::new(system, n);
+        let (mut active, switcher) = Switcher::new(cfg.method, n, &structure, &cfg)?;
+        if cfg.fixed_step.is_none() && !active.has_error_estimate() {
+            return Err(SetupError::FixedStepRequired(active.method()));
+        }
+        active
+            .start(&mut problem, t0, y0)
+            .map_err(|_| SetupError::NonFiniteInitialRhs { t: t0 })?;
+        let direction = if t_end >= t0 { 1.0 } else { -1.0 };
+        let span = (t_end - t0).abs();
+        let mut ctl = Self {
+            problem,
+            norm,
+            active,
+            switcher,
+            cfg,
+            pi: PiController::default(),
+            direction,
+            h: 0.0,
+            stats: ControlStats::default(),
+        };
+        ctl.h = match (ctl.cfg.fixed_step, ctl.cfg.first_step) {
+            (Some(h), _) => h,
+            (None, Some(h)) => h,
+            (None, None) => ctl.automatic_first_step(),
+        }
+        .min(ctl.cfg.max_step)
+        .min(span.max(f64::MIN_POSITIVE));
+        ctl.switcher.at_start(
+            &mut ctl.problem,
+            ctl.active.as_ref(),
+            &ctl.norm,
+            &mut ctl.stats,
+        );
+        Ok(ctl)
+    }
+
+    fn automatic_first_step(&mut self) -> f64 {
+        let n = self.problem.n;
+        let t0 = self.active.t();
+        let y0 = self.active.y().to_vec();
+        let f0 = match self.active.dydt() {
+            Some(f) => f.to_vec(),
+            None => {
+                let mut f = vec![0.0; n];
+                self.problem.rhs(t0, &y0, &mut f);
+                f
+            }
+        };
+        let (mut y1, mut f1) = (vec![0.0; n], vec![0.0; n]);
+        let order = self.active.order();
+        let p = &mut self.problem;
+        initial_step(
+            &self.norm,
+            t0,
+            &y0,
+            &f0,
+            order,
+            self.direction,
+            &mut y1,
+            &mut f1,
+            |t, y, dy| p.rhs(t, y, dy),
+        )
+    }
+
+    /// The scheme now in use: current state and dense output of the last step.
+    pub fn scheme(&self) -> &dyn SchemeState {
+        self.active.as_ref()
+    }
+
+    /// The method now in use.
+    pub fn active_method(&self) -> Method {
+        self.active.method()
+    }
+
+    /// Current time.
+    pub fn t(&self) -> f64 {
+        self.active.t()
+    }
+
+    /// Current state.
+    pub fn y(&self) -> &[f64] {
+        self.active.y()
+    }
+
+    /// Magnitude of the next step the controller will try.
+    pub fn next_step(&self) -> f64 {
+        self.h
+    }
+
+    /// The controller's counters.
+    pub fn stats(&self) -> ControlStats {
+        self.stats
+    }
+
+    /// The schemes' work counters.
+    pub fn counters(&self) -> WorkCounters {
+        self.problem.counters
+    }
+
+    /// Every switch so far, in order.
+    pub fn switches(&self) -> &[SwitchRecord] {
+        self.switcher.records()
+    }
+
+    /// The latest spectral estimate `(rho, lambda)` if any.
+    pub fn spectral_estimate(&self) -> Option<(f64, num_complex::Complex64)> {
+        self.switcher.latest_estimate()
+    }
+
+    /// The user's system (for instance to read its state after the run).
+    pub fn system(&self) -> &S {
+        &self.problem.system
+    }
+
+    /// The user's system, mutably.
+    pub fn system_mut(&mut self) -> &mut S {
+        &mut self.problem.system
+    }
+
+    /// Consumes the controller and returns the user's system.
+    pub fn into_system(self) -> S {
+        self.problem.system
+    }
+
+    /// Restarts the active scheme from `(t, y)` after a discontinuity (a
+    /// breakpoint or a state change at an event). The step size is kept.
+    pub fn restart(&mut self, t: f64, y: &[f64]) -> Result<(), RunFailure> {
+        self.pi.reset();
+        self.active
+            .start(&mut self.problem, t, y)
+            .map_err(|_| RunFailure::NonFiniteRhs { t, h: self.h })
+    }
+
+    /// Takes one accepted step towards `t_limit`, never past it.
+    pub fn step(&mut self, t_limit: f64) -> Result<StepReport, RunFailure> {
+        let mut failures = 0usize;
+        loop {
+            let t = self.active.t();
+            let remaining = (t_limit - t) * self.direction;
+            if remaining <= 0.0 {
+                return Ok(StepReport {
+                    t_prev: t,
+                    t,
+                    h: 0.0,
+                    capped: false,
+                    reached_limit: true,
+                });
+            }
+            if self.stats.accepted + self.stats.rejected + self.stats.failed_attempts
+                >= self.cfg.max_steps
+            {
+                return Err(RunFailure::TooManySteps {
+                    t,
+                    max: self.cfg.max_steps,
+                });
+            }
+            let mut h_mag = self.cfg.fixed_step.unwrap_or(self.h.min(self.cfg.max_step));
+            let mut capped = false;
+            if let Some(cap) = self.switcher.step_cap(self.active.as_ref(), &self.cfg) {
+                if cap < h_mag {
+                    h_mag = cap;
+                    capped = true;
+                }
+            }
+            // Stretch the last step up to 1% rather than leave a sliver.
+            let reached_limit = h_mag * 1.01 >= remaining;
+            if reached_limit {
+                h_mag = remaining;
+            }
+            let h_floor = self.cfg.min_step.max(16.0 * f64::EPSILON * t.abs());
+            if h_mag < h_floor && !reached_limit {
+                return Err(RunFailure::StepSizeTooSmall { t, h: h_mag });
+            }
+            let h = self.direction * h_mag;
+            let result = self.active.attempt(&mut self.problem, h, &self.norm);
+            let fixed = self.cfg.fixed_step.is_some();
+            match result {
+                Ok(a) if fixed || a.error <= 1.0 => {
+                    self.active.accept(&mut self.problem);
+                    self.stats.accepted += 1;
+                    if capped {
+                        self.stats.stability_limited += 1;
+                    }
+                    if !fixed {
+                        let q = self.active.error_order();
+                        let f = match a.factor {
+                            Some(f) => {
+                                self.pi.factor(a.error, q, true);
+                                f
+                            }
+                            None => self.pi.factor(a.error, q, true),
+                        };
+                        let proposal = (h_mag * f).min(self.cfg.max_step);
+                        // A step shortened to land on the limit says nothing
+                        // about the step accuracy allows: keep the larger one.
+                        self.h = if reached_limit && !capped {
+                            proposal.max(self.h)
+                        } else {
+                            proposal
+                        };
+                    }
+                    let report = StepReport {
+                        t_prev: self.active.t_prev(),
+                        t: self.active.t(),
+                        h,
+                        capped,
+                        reached_limit,
+                    };
+                    if let Some(next) = self.switcher.after_accept(
+                        &mut self.problem,
+                        &mut self.active,
+                        &self.norm,
+                        &report,
+                        self.h,
+                        &self.cfg,
+                        &mut self.stats,
+                    ) {
+                        self.pi.reset();
+                        self.h = next;
+                    }
+                    return Ok(report);
+                }
+                Ok(a) => {
+                    self.active.reject();
+                    self.stats.rejected += 1;
+                    let q = self.active.error_order();
+                    let f = match a.factor {
+                        Some(f) => f.min(0.9),
+                        None => self.pi.factor(a.error, q, false),
+                    };
+                    self.h = h_mag * f;
+                    self.switcher.after_reject();
+                }
+                Err(failure) => {
+                    self.active.reject();
+                    self.stats.failed_attempts += 1;
+                    failures += 1;
+                    let as_run_failure = |t: f64, h: f64| match failure {
+                        StepFailure::NonFinite => RunFailure::NonFiniteRhs { t, h },
+                        StepFailure::NewtonFailed => RunFailure::NewtonFailed { t, h },
+                        StepFailure::SingularMatrix => RunFailure::SingularMatrix { t, h },
+                    };
+                    if fixed || failures >= MAX_CONSECUTIVE_FAILURES {
+                        return Err(as_run_failure(t, h_mag));
+                    }
+                    self.h = h_mag
+                        * match failure {
+                            StepFailure::NonFinite => 0.25,
+                            StepFailure::NewtonFailed | StepFailure::SingularMatrix => 0.5,
+                        };
+                    self.switcher.after_reject();
+                }
+            }
+        }
+    }
+}
+
+/// Builds the single scheme for `method`, mapping build errors.
+pub(crate) fn build_scheme<S: System>(
+    method: Method,
+    n: usize,
+    structure: &ballast_core::Structure,
+    cfg: &ControlConfig,
+) -> Result<Box<dyn Scheme<S>>, SetupError> {
+    Ok(build::<S>(method, n, structure, &cfg.scheme)?)
+}

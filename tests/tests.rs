@@ -1,0 +1,4 @@
+//! Integration tests of ballast, built as one binary (one module per topic).
+
+mod common;
+mod explicit_runs;
