@@ -141,3 +141,30 @@ proptest! {
         prop_assert!(err <= 20.0 * tol, "lambda {lambda}, tol {tol:e}, err {err:e}");
     }
 }
+
+/// A stiff scalar problem forced onto Dormand–Prince 5(4): y' = -1e4 (y - cos t).
+/// The stability cap holds the step near the stability limit instead of
+/// letting it oscillate through rejections, and the result matches the
+/// closed form y = (1e8 cos t + 1e4 sin t - 1e8 e^{-1e4 t}) / (1e8 + 1).
+#[test]
+fn forced_explicit_method_is_capped_on_a_stiff_problem() {
+    let k = 1e4;
+    let opts = Options::default()
+        .rtol(1e-6)
+        .atol(1e-9)
+        .method(Method::DormandPrince54);
+    let sol = integrate(
+        move |t: f64, y: &[f64], dy: &mut [f64]| dy[0] = -k * (y[0] - t.cos()),
+        (0.0, 1.0),
+        &[0.0],
+        &opts,
+    )
+    .unwrap();
+    let exact = (k * k * 1f64.cos() + k * 1f64.sin()) / (k * k + 1.0);
+    assert!((sol.y_final()[0] - exact).abs() < 1e-5);
+    let s = sol.stats();
+    assert!(s.stability_limited > 100, "{s:?}");
+    assert!(s.spectral_estimates >= 1);
+    // Rejections stay few: the cap, not trial and error, sets the step.
+    assert!(s.rejected * 20 < s.accepted, "{s:?}");
+}

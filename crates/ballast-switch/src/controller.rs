@@ -128,7 +128,7 @@ impl<S: System> Controller<S> {
         ctl.switcher.at_start(
             &mut ctl.problem,
             ctl.active.as_ref(),
-            &ctl.norm,
+            &ctl.cfg,
             &mut ctl.stats,
         );
         Ok(ctl)
@@ -256,7 +256,7 @@ impl<S: System> Controller<S> {
             }
             let mut h_mag = self.cfg.fixed_step.unwrap_or(self.h.min(self.cfg.max_step));
             let mut capped = false;
-            if let Some(cap) = self.switcher.step_cap(self.active.as_ref(), &self.cfg) {
+            if let Some(cap) = self.switcher.step_cap() {
                 if cap < h_mag {
                     h_mag = cap;
                     capped = true;
@@ -309,7 +309,6 @@ impl<S: System> Controller<S> {
                     if let Some(next) = self.switcher.after_accept(
                         &mut self.problem,
                         &mut self.active,
-                        &self.norm,
                         &report,
                         self.h,
                         &self.cfg,

@@ -21,6 +21,7 @@
 mod config;
 mod controller;
 mod error;
+mod monitor;
 mod switching;
 
 pub use config::{ControlConfig, SwitchThresholds};

@@ -1,11 +1,47 @@
-//! Which scheme runs, when to cap its step, and when to switch.
+//! Which scheme runs, how far its step may go, and when to switch.
+//!
+//! An explicit scheme is capped at `h_stab = cap_safety * r(theta) / rho`
+//! (see [`crate::monitor`]). A switching pair starts explicit; it moves to
+//! the implicit scheme when the cap has held the step for
+//! `capped_steps_to_switch` accepted steps and the implicit scheme's
+//! expected cost per unit time is lower, and back when the implicit step
+//! `h` satisfies `h * rho <= return_margin * r(theta)` of the explicit
+//! region for `fitting_steps_to_return` steps. At least
+//! `min_steps_between_switches` steps separate two switches.
+//!
+//! Costs per unit time are `seconds per step / h`, from measured
+//! quantities: the time per right-hand-side call (timed during the
+//! spectral estimates), each scheme's right-hand-side calls per step (from
+//! the counters), and, once the implicit scheme has run, its measured time
+//! per step (which includes Jacobians and factorisations). Before the
+//! implicit scheme has run once, its step is predicted as
+//! `PRIOR_RHS_PER_IMPLICIT_STEP` calls plus a dense LU at
+//! `PRIOR_SECONDS_PER_FLOP`; after the first switch measurements replace the prior.
 
-use ballast_core::{ErrorNorm, Method, Problem, Scheme, SchemeState, Structure, System};
+use std::time::Instant;
+
+use ballast_core::{Method, Problem, Scheme, SchemeState, Structure, System};
 use num_complex::Complex64;
 
 use crate::config::ControlConfig;
 use crate::controller::{build_scheme, ControlStats, StepReport};
 use crate::error::SetupError;
+use crate::monitor::{critical_step, current_region, Monitor, Spectrum};
+
+/// Prior for an implicit step before it has been measured: one
+/// right-hand-side call for the stage start plus three stages times two
+/// Newton iterations (a typical Radau IIA step; Hairer and Wanner II, IV.8).
+const PRIOR_RHS_PER_IMPLICIT_STEP: f64 = 7.0;
+
+/// Prior time per floating-point operation of a small dense LU (about one
+/// GFlop/s; common practice as an order of magnitude). Used only until the
+/// implicit scheme's own steps are timed.
+const PRIOR_SECONDS_PER_FLOP: f64 = 1e-9;
+
+/// A cap below this fraction of the real-axis reach comes from a ray that
+/// only grazes the region (an eigenvalue near the imaginary axis): there
+/// growth is slow and the error estimate governs, so no cap is applied.
+const GRAZING_FRACTION: f64 = 0.01;
 
 /// Why the controller switched schemes.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -43,12 +79,40 @@ pub struct SwitchRecord {
     pub rho: f64,
 }
 
+/// Measured cost of one scheme: seconds and right-hand-side calls per step.
+#[derive(Clone, Copy, Debug, Default)]
+struct CostMeter {
+    steps: usize,
+    rhs: usize,
+    seconds: f64,
+}
+
+impl CostMeter {
+    fn rhs_per_step(&self) -> Option<f64> {
+        (self.steps > 0).then(|| self.rhs as f64 / self.steps as f64)
+    }
+    fn seconds_per_step(&self) -> Option<f64> {
+        (self.steps > 0 && self.seconds > 0.0).then(|| self.seconds / self.steps as f64)
+    }
+}
+
 /// The switching state of a run: the standby scheme of a pair (if any),
 /// the stiffness monitor, and the record of switches.
 pub(crate) struct Switcher<S: System> {
     standby: Option<Box<dyn Scheme<S>>>,
+    monitor: Option<Monitor>,
     records: Vec<SwitchRecord>,
-    estimate: Option<(f64, Complex64)>,
+    n: usize,
+    /// Cap in force for the active explicit scheme (magnitude), from the latest estimate.
+    cap: Option<f64>,
+    capped_run: usize,
+    fitting_run: usize,
+    since_switch: usize,
+    explicit_cost: CostMeter,
+    implicit_cost: CostMeter,
+    /// Counter snapshot and clock at the previous accepted step.
+    last_rhs: usize,
+    clock: Option<Instant>,
 }
 
 impl<S: System> Switcher<S> {
@@ -74,12 +138,23 @@ impl<S: System> Switcher<S> {
             }
             single => (build_scheme::<S>(single, n, structure, cfg)?, None),
         };
+        let monitored = standby.is_some()
+            || (cfg.stability_cap && cfg.fixed_step.is_none() && !first.is_implicit());
         Ok((
             first,
             Self {
                 standby,
+                monitor: monitored.then(|| Monitor::new(n)),
                 records: Vec::new(),
-                estimate: None,
+                n,
+                cap: None,
+                capped_run: 0,
+                fitting_run: 0,
+                since_switch: 0,
+                explicit_cost: CostMeter::default(),
+                implicit_cost: CostMeter::default(),
+                last_rhs: 0,
+                clock: None,
             },
         ))
     }
@@ -89,35 +164,235 @@ impl<S: System> Switcher<S> {
     }
 
     pub(crate) fn latest_estimate(&self) -> Option<(f64, Complex64)> {
-        self.estimate
+        self.monitor
+            .as_ref()
+            .and_then(|m| m.latest())
+            .map(|s| (s.rho, s.lambda))
     }
 
+    /// First estimate before the first step, so that step is capped too.
     pub(crate) fn at_start(
         &mut self,
-        _p: &mut Problem<S>,
-        _active: &dyn Scheme<S>,
-        _norm: &ErrorNorm,
-        _stats: &mut ControlStats,
+        p: &mut Problem<S>,
+        active: &dyn Scheme<S>,
+        cfg: &ControlConfig,
+        stats: &mut ControlStats,
     ) {
+        if let Some(m) = self.monitor.as_mut() {
+            m.estimate(p, active, stats);
+        }
+        self.refresh_cap(active, cfg);
+        self.last_rhs = p.counters.rhs_evals;
     }
 
-    pub(crate) fn step_cap(&self, _active: &dyn Scheme<S>, _cfg: &ControlConfig) -> Option<f64> {
-        None
+    /// The stability cap (step magnitude) for the next step of `active`.
+    pub(crate) fn step_cap(&self) -> Option<f64> {
+        self.cap
     }
 
-    pub(crate) fn after_reject(&mut self) {}
+    fn refresh_cap(&mut self, active: &dyn SchemeState, cfg: &ControlConfig) {
+        self.cap = None;
+        if active.is_implicit() || !cfg.stability_cap || cfg.fixed_step.is_some() {
+            return;
+        }
+        let (Some(m), Some(region)) = (
+            self.monitor.as_ref(),
+            current_region(active.method(), active.order()),
+        ) else {
+            return;
+        };
+        let Some(s) = m.latest() else { return };
+        let Some(h) = critical_step(region, s) else {
+            return;
+        };
+        let real = region.summary().real_interval.unwrap_or(f64::INFINITY);
+        if h * s.rho < GRAZING_FRACTION * real {
+            return;
+        }
+        self.cap = Some(cfg.switching.cap_safety * h);
+    }
 
+    pub(crate) fn after_reject(&mut self) {
+        if let Some(m) = self.monitor.as_mut() {
+            m.note_reject();
+        }
+    }
+
+    /// Bookkeeping after an accepted step: estimates, costs, switching.
+    /// Returns the step size to use next when a switch happened.
     pub(crate) fn after_accept(
         &mut self,
-        _p: &mut Problem<S>,
-        _active: &mut Box<dyn Scheme<S>>,
-        _norm: &ErrorNorm,
-        _report: &StepReport,
-        _h_next: f64,
-        _cfg: &ControlConfig,
-        _stats: &mut ControlStats,
+        p: &mut Problem<S>,
+        active: &mut Box<dyn Scheme<S>>,
+        report: &StepReport,
+        h_next: f64,
+        cfg: &ControlConfig,
+        stats: &mut ControlStats,
     ) -> Option<f64> {
-        let _ = &self.standby;
-        None
+        let Some(m) = self.monitor.as_mut() else {
+            return None;
+        };
+        // Cost of the step just taken.
+        let rhs_now = p.counters.rhs_evals;
+        let meter = if active.is_implicit() {
+            &mut self.implicit_cost
+        } else {
+            &mut self.explicit_cost
+        };
+        meter.steps += 1;
+        meter.rhs += rhs_now - self.last_rhs;
+        if active.is_implicit() {
+            if let Some(c) = self.clock {
+                meter.seconds += c.elapsed().as_secs_f64();
+            }
+        }
+        m.note_accept();
+        self.since_switch += 1;
+        if m.due(active.stage_spectral_estimate(), &cfg.switching) {
+            m.estimate(p, active.as_ref(), stats);
+            self.refresh_cap(active.as_ref(), cfg);
+        } else if matches!(active.method(), Method::Adams) {
+            // The region follows the current order.
+            self.refresh_cap(active.as_ref(), cfg);
+        }
+        let spectrum = self.monitor.as_ref().and_then(|m| m.latest());
+        let next = match (self.standby.is_some(), spectrum) {
+            (true, Some(s)) => self.consider_switch(p, active, report, h_next, s, cfg, stats),
+            _ => None,
+        };
+        self.last_rhs = p.counters.rhs_evals;
+        self.clock = active.is_implicit().then(Instant::now);
+        next
+    }
+
+    fn seconds_per_rhs(&self) -> f64 {
+        self.monitor
+            .as_ref()
+            .and_then(|m| m.seconds_per_rhs)
+            .unwrap_or(1e-7)
+    }
+
+    /// Expected seconds per implicit step: measured once it has run, else the prior.
+    fn implicit_step_seconds(&self) -> f64 {
+        if let Some(s) = self.implicit_cost.seconds_per_step() {
+            return s;
+        }
+        let n = self.n as f64;
+        // Real LU n^3 * 2/3 plus complex LU (four real flops per complex one).
+        let lu_flops = (2.0 / 3.0) * n * n * n * 5.0;
+        PRIOR_RHS_PER_IMPLICIT_STEP * self.seconds_per_rhs() + lu_flops * PRIOR_SECONDS_PER_FLOP
+    }
+
+    fn explicit_step_seconds(&self) -> f64 {
+        self.explicit_cost.rhs_per_step().unwrap_or(6.0) * self.seconds_per_rhs()
+    }
+
+    #[allow(clippy::too_many_arguments)]
+    fn consider_switch(
+        &mut self,
+        p: &mut Problem<S>,
+        active: &mut Box<dyn Scheme<S>>,
+        report: &StepReport,
+        h_next: f64,
+        s: Spectrum,
+        cfg: &ControlConfig,
+        stats: &mut ControlStats,
+    ) -> Option<f64> {
+        let th = &cfg.switching;
+        let (standby_method, standby_order) = {
+            let sb = self.standby.as_ref()?;
+            (sb.method(), sb.order())
+        };
+        if !active.is_implicit() {
+            self.capped_run = if report.capped {
+                self.capped_run + 1
+            } else {
+                0
+            };
+            if self.capped_run < th.capped_steps_to_switch
+                || self.since_switch < th.min_steps_between_switches
+            {
+                return None;
+            }
+            let h_stab = self.cap?;
+            // Accuracy would allow h_next; the cap holds the scheme at h_stab.
+            let explicit_rate = self.explicit_step_seconds() / h_stab;
+            let implicit_rate = self.implicit_step_seconds() / h_next.max(h_stab);
+            if implicit_rate >= explicit_rate {
+                return None;
+            }
+            self.switch(
+                p,
+                active,
+                SwitchReason::StabilityBound,
+                h_next,
+                s.rho,
+                stats,
+            )?;
+            Some(h_next)
+        } else {
+            let region = current_region(standby_method, standby_order.max(1))?;
+            let h_now = report.h.abs();
+            let fits = match critical_step(region, s) {
+                None => true,
+                Some(hc) => h_now <= th.return_margin * hc,
+            };
+            self.fitting_run = if fits { self.fitting_run + 1 } else { 0 };
+            if self.fitting_run < th.fitting_steps_to_return
+                || self.since_switch < th.min_steps_between_switches
+            {
+                return None;
+            }
+            let hc = critical_step(region, s).map_or(f64::INFINITY, |h| th.cap_safety * h);
+            let h_explicit = h_next.min(hc);
+            let explicit_rate = self.explicit_step_seconds() / h_explicit;
+            let implicit_rate = self.implicit_step_seconds() / h_next;
+            if explicit_rate > implicit_rate {
+                return None;
+            }
+            self.switch(
+                p,
+                active,
+                SwitchReason::NonStiffAgain,
+                h_explicit,
+                s.rho,
+                stats,
+            )?;
+            self.refresh_cap(active.as_ref(), cfg);
+            Some(h_explicit)
+        }
+    }
+
+    fn switch(
+        &mut self,
+        p: &mut Problem<S>,
+        active: &mut Box<dyn Scheme<S>>,
+        reason: SwitchReason,
+        h: f64,
+        rho: f64,
+        stats: &mut ControlStats,
+    ) -> Option<()> {
+        let mut next = self.standby.take()?;
+        let (t, from) = (active.t(), active.method());
+        if next.start(p, t, active.y()).is_err() {
+            self.standby = Some(next);
+            return None;
+        }
+        std::mem::swap(active, &mut next);
+        self.standby = Some(next);
+        self.records.push(SwitchRecord {
+            t,
+            from,
+            to: active.method(),
+            reason,
+            h,
+            rho,
+        });
+        stats.switches += 1;
+        self.since_switch = 0;
+        self.capped_run = 0;
+        self.fitting_run = 0;
+        self.cap = None;
+        Some(())
     }
 }

@@ -1,0 +1,165 @@
+//! The stiffness monitor: when to estimate the dominant eigenvalue, and the
+//! stability cap that follows from it.
+//!
+//! The full estimate is a warm-started power iteration on finite-difference
+//! Jacobian–vector products `(f(t, y + e v) - f(t, y)) / e` (one `f` call
+//! each; Sommeijer, Shampine and Verwer 1998). It runs at the start, every
+//! `estimate_interval` accepted steps, and at once when the free estimate
+//! from the explicit stages (Hairer and Wanner II, IV.2) moves by more than
+//! `stage_change_trigger`, or after repeated rejections.
+
+use std::time::Instant;
+
+use ballast_core::stability::{self, Region};
+use ballast_core::{Method, Problem, SchemeState, System};
+use ballast_stiffness::{PowerOptions, SpectralEstimator};
+use num_complex::Complex64;
+
+use crate::config::SwitchThresholds;
+use crate::controller::ControlStats;
+
+/// Products allowed for one estimate. A warm start usually needs 3–6; a
+/// cold start on a Jacobian with a slowly decaying spectrum more (common practice).
+const MAX_PRODUCTS: usize = 40;
+
+/// Relative accuracy asked of the estimate: the cap uses `0.9` of the reach,
+/// so an estimate within a few percent keeps steps inside the region.
+const ESTIMATE_TOL: f64 = 1e-2;
+
+/// Rejections in a row that trigger a fresh estimate (the stiffness may have grown).
+const REJECTIONS_TO_ESTIMATE: usize = 2;
+
+/// The latest spectral estimate.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub(crate) struct Spectrum {
+    /// Spectral radius (on the safe side when the iteration did not converge).
+    pub rho: f64,
+    /// Dominant eigenvalue estimate.
+    pub lambda: Complex64,
+}
+
+pub(crate) struct Monitor {
+    estimator: SpectralEstimator,
+    opts: PowerOptions,
+    fy: Vec<f64>,
+    y: Vec<f64>,
+    latest: Option<Spectrum>,
+    steps_since: usize,
+    stage_ref: Option<f64>,
+    rejections: usize,
+    /// Seconds per right-hand-side call, measured during estimates.
+    pub(crate) seconds_per_rhs: Option<f64>,
+}
+
+impl Monitor {
+    pub(crate) fn new(n: usize) -> Self {
+        Self {
+            estimator: SpectralEstimator::new(n),
+            opts: PowerOptions::default()
+                .tol(ESTIMATE_TOL)
+                .max_products(MAX_PRODUCTS),
+            fy: vec![0.0; n],
+            y: vec![0.0; n],
+            latest: None,
+            steps_since: 0,
+            stage_ref: None,
+            rejections: 0,
+            seconds_per_rhs: None,
+        }
+    }
+
+    pub(crate) fn latest(&self) -> Option<Spectrum> {
+        self.latest
+    }
+
+    /// Whether a full estimate is due after an accepted step.
+    pub(crate) fn due(&self, stage: Option<f64>, th: &SwitchThresholds) -> bool {
+        if self.latest.is_none() || self.steps_since >= th.estimate_interval {
+            return true;
+        }
+        if self.rejections >= REJECTIONS_TO_ESTIMATE {
+            return true;
+        }
+        match (stage, self.stage_ref) {
+            (Some(s), Some(r)) if r > 0.0 => (s - r).abs() > th.stage_change_trigger * r,
+            _ => false,
+        }
+    }
+
+    pub(crate) fn note_accept(&mut self) {
+        self.steps_since += 1;
+        self.rejections = 0;
+    }
+
+    pub(crate) fn note_reject(&mut self) {
+        self.rejections += 1;
+    }
+
+    /// Runs the power iteration at the scheme's current state.
+    pub(crate) fn estimate<S: System>(
+        &mut self,
+        p: &mut Problem<S>,
+        scheme: &dyn SchemeState,
+        stats: &mut ControlStats,
+    ) {
+        let t = scheme.t();
+        self.y.copy_from_slice(scheme.y());
+        match scheme.dydt() {
+            Some(f) => self.fy.copy_from_slice(f),
+            None => p.rhs(t, &self.y, &mut self.fy),
+        }
+        let clock = Instant::now();
+        let f = |v: &[f64], out: &mut [f64]| p.rhs(t, v, out);
+        let Ok(est) = self.estimator.estimate_fd(f, &self.y, &self.fy, &self.opts) else {
+            return;
+        };
+        let elapsed = clock.elapsed().as_secs_f64();
+        stats.spectral_estimates += 1;
+        stats.spectral_products += est.products;
+        if est.products > 0 {
+            let per = elapsed / est.products as f64;
+            self.seconds_per_rhs = Some(match self.seconds_per_rhs {
+                Some(old) => 0.5 * (old + per),
+                None => per,
+            });
+        }
+        self.steps_since = 0;
+        self.rejections = 0;
+        self.stage_ref = scheme.stage_spectral_estimate();
+        if est.radius.is_finite() {
+            self.latest = Some(Spectrum {
+                rho: est.radius,
+                lambda: if est.eigenvalue.norm() > 0.0 {
+                    est.eigenvalue * (est.radius / est.eigenvalue.norm())
+                } else {
+                    Complex64::new(-est.radius, 0.0)
+                },
+            });
+        }
+    }
+}
+
+/// The stability region a scheme is using now (the current order's, for
+/// variable-order schemes).
+pub(crate) fn current_region(method: Method, order: usize) -> Option<&'static Region> {
+    match method {
+        Method::Adams => stability::adams_pece(order),
+        Method::Bdf => stability::bdf(order),
+        m => stability::method_region(m),
+    }
+}
+
+/// The largest step keeping `h lambda` inside `region` along the ray of
+/// `lambda`: `r(theta) / |lambda|`, from the tabulated rays (no allocation).
+/// `None` when that ray has no limit or `lambda` grows (`Re > 0`).
+pub(crate) fn critical_step(region: &Region, s: Spectrum) -> Option<f64> {
+    if s.rho <= 0.0 || s.lambda.re > 0.0 {
+        return None;
+    }
+    let theta = s
+        .lambda
+        .im
+        .atan2(s.lambda.re)
+        .rem_euclid(2.0 * std::f64::consts::PI);
+    region.reach(theta).map(|r| r / s.rho)
+}
