@@ -31,11 +31,13 @@ pub mod jacobian;
 pub mod linalg;
 pub mod matrix;
 pub mod method;
+pub mod multistep;
 pub mod newton;
 pub mod norm;
 pub mod options;
 pub mod problem;
 pub mod scheme;
+pub mod stability;
 pub mod system;
 
 pub use matrix::Jacobian;
