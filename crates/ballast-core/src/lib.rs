@@ -37,7 +37,6 @@ pub mod norm;
 pub mod options;
 pub mod problem;
 pub mod scheme;
-pub mod stability;
 pub mod system;
 
 pub use matrix::Jacobian;
