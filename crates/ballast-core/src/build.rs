@@ -36,6 +36,12 @@ pub fn build<S: System>(
         Method::Rk4 => rk(&tableau::RK4),
         Method::BogackiShampine32 => rk(&tableau::BOGACKI_SHAMPINE_32),
         Method::DormandPrince54 => rk(&tableau::DORMAND_PRINCE_54),
+        Method::Adams => Ok(Box::new(crate::multistep::Adams::new(n))),
+        Method::Bdf => Ok(Box::new(crate::multistep::Bdf::new(
+            n,
+            structure,
+            &opts.implicit,
+        )?)),
         other => Err(BuildError::NotASingleScheme(other)),
     }
 }
