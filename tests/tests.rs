@@ -1,4 +1,5 @@
 //! Integration tests of ballast, built as one binary (one module per topic).
 
 mod common;
+mod contract;
 mod explicit_runs;

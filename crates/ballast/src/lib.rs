@@ -36,6 +36,13 @@ mod options;
 mod run;
 mod solution;
 
+/// Stability regions of every method: `R(z)`, reach along rays, intervals,
+/// A-/L-stability, A(alpha), and [`critical_step`](stability::critical_step).
+pub use ballast_core::stability;
+/// The dominant eigenvalue by power iteration, matrix-free:
+/// [`spectral_radius`](stiffness::spectral_radius) and a warm-started estimator.
+pub use ballast_stiffness as stiffness;
+
 pub use ballast_core::{
     ByRef, Jacobian, JacobianSource, Method, SparsityPattern, Structure, SwitchPair, System,
     WithJacobian, WithStructure,
