@@ -37,6 +37,7 @@ pub mod norm;
 pub mod options;
 pub mod problem;
 pub mod scheme;
+pub mod stability;
 pub mod system;
 
 pub use matrix::Jacobian;
