@@ -54,3 +54,8 @@ pub use num_complex::Complex64;
 pub use options::{Options, Output};
 pub use run::{integrate, Run, StepInfo, StopReason};
 pub use solution::{Solution, Stats};
+
+/// The README's code examples, compiled and run as doctests.
+#[cfg(doctest)]
+#[doc = include_str!("../../../README.md")]
+struct ReadmeDoctests;
