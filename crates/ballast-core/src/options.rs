@@ -25,6 +25,14 @@ pub struct ImplicitOptions {
     pub structure: Option<Structure>,
     /// Cap on Newton iterations per step (stage system).
     pub max_newton_iters: usize,
+    /// Recompute the Jacobian after an accepted step whose Newton
+    /// contraction rate `theta` exceeded this (Hairer and Wanner II, IV.8
+    /// use 0.001 with their Radau code; raise it towards 0.1 when Jacobians
+    /// are expensive).
+    pub jacobian_refresh_rate: f64,
+    /// Keep the factorised iteration matrix while `|h / h_factored - 1|`
+    /// stays below this and the Jacobian is unchanged (common practice).
+    pub refactor_threshold: f64,
 }
 
 impl Default for ImplicitOptions {
@@ -33,6 +41,8 @@ impl Default for ImplicitOptions {
             jacobian: JacobianSource::Auto,
             structure: None,
             max_newton_iters: 7,
+            jacobian_refresh_rate: 1e-3,
+            refactor_threshold: 0.2,
         }
     }
 }

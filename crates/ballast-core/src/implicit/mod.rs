@@ -1,2 +1,32 @@
 //! Implicit one-step methods: diagonally and fully implicit Runge–Kutta, Rosenbrock.
+//!
+//! - [`Dirk`]: backward Euler, trapezoid, TR-BDF2, ESDIRK 4(3);
+//! - [`Radau5`]: Radau IIA of order 5 with the real/complex splitting;
+//! - [`Rosenbrock`]: ROS3P.
+//!
+//! All share the [`iteration::IterationMatrix`] cache (Jacobian reuse,
+//! factorisation reuse) and the Newton control of [`crate::newton`].
+//!
+//! ```
+//! use ballast_core::{implicit::Dirk, implicit::tableau::ESDIRK_43, Atol, ErrorNorm,
+//!                    ImplicitOptions, Problem, Scheme, SchemeState, Structure};
+//! // A stiff linear decay y' = -1000 (y - 1), one step far beyond 1/1000.
+//! let mut p = Problem::new(|_t: f64, y: &[f64], d: &mut [f64]| d[0] = -1000.0 * (y[0] - 1.0), 1);
+//! let mut s = Dirk::new(&ESDIRK_43, 1, &Structure::Dense, &ImplicitOptions::default()).unwrap();
+//! s.start(&mut p, 0.0, &[0.0]).unwrap();
+//! let norm = ErrorNorm::new(1e-6, Atol::Scalar(1e-9), 1);
+//! let _ = s.attempt(&mut p, 0.5, &norm).unwrap();
+//! s.accept(&mut p);
+//! assert!((s.y()[0] - 1.0).abs() < 1e-6); // L-stable: the transient is gone
+//! ```
+pub mod dirk;
+pub mod hermite;
+pub mod iteration;
+pub mod radau5;
+pub mod radau_constants;
+pub mod rosenbrock;
 pub mod tableau;
+
+pub use dirk::Dirk;
+pub use radau5::Radau5;
+pub use rosenbrock::Rosenbrock;

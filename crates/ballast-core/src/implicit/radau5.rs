@@ -1,0 +1,375 @@
+//! Radau IIA of order 5 (three stages), implemented as Hairer and Wanner
+//! describe (Solving ODEs II, IV.8).
+//!
+//! The stage increments `Z = h (A ⊗ I) F(Z)` are solved by simplified
+//! Newton on `W = (T^{-1} ⊗ I) Z`, where `T^{-1} A^{-1} T` is block
+//! diagonal with a real eigenvalue `gamma` and a block for the complex pair
+//! `alpha ± i beta`. Each iteration then needs one real `n × n` solve with
+//! `gamma/h I - J` and one complex `n × n` solve with `(alpha + i beta)/h I - J`,
+//! instead of a `3n × 3n` system. The error estimate is the embedded
+//! order-3 formula filtered by `(gamma/h I - J)^{-1}` (eq. (8.19)–(8.20)),
+//! refiltered through `f(t_n, y_n + err)` on the first step and after a
+//! rejection; dense output is the collocation polynomial, which also
+//! predicts the next step's stages. The factorisations are kept while
+//! `h / h_factored` is in `[1, 1.2)` and Newton contracted fast.
+
+use super::iteration::IterationMatrix;
+use super::radau_constants::RadauConstants;
+use super::tableau::RADAU_IIA_5;
+use crate::method::Method;
+use crate::newton::{NewtonControl, NewtonStatus};
+use crate::norm::ErrorNorm;
+use crate::options::ImplicitOptions;
+use crate::problem::Problem;
+use crate::scheme::{Attempt, Scheme, SchemeState, StepFailure};
+use crate::system::{Structure, System};
+use num_complex::Complex64;
+
+/// Newton rate below which the factorisation may be kept (Hairer and
+/// Wanner II, IV.8 keep it when the Jacobian is kept).
+const FAST_RATE: f64 = 0.1;
+
+/// The Radau IIA 5 scheme.
+#[derive(Debug)]
+pub struct Radau5 {
+    k: RadauConstants,
+    n: usize,
+    t: f64,
+    y: Vec<f64>,
+    f0: Vec<f64>,
+    have_f0: bool,
+    t_prev: f64,
+    y_prev: Vec<f64>,
+    h_last: f64,
+    h: f64,
+    z: [Vec<f64>; 3],
+    w: [Vec<f64>; 3],
+    fz: [Vec<f64>; 3],
+    cont: [Vec<f64>; 3],
+    y_new: Vec<f64>,
+    res: Vec<f64>,
+    tmp: Vec<f64>,
+    cres: Vec<Complex64>,
+    iter: IterationMatrix,
+    newton: NewtonControl,
+    last_theta: f64,
+    last_failed: bool,
+    first: bool,
+    rejected_last: bool,
+}
+
+fn three(n: usize) -> [Vec<f64>; 3] {
+    [vec![0.0; n], vec![0.0; n], vec![0.0; n]]
+}
+
+impl Radau5 {
+    /// A scheme for a system of dimension `n` whose Jacobian has `structure`.
+    pub fn new(n: usize, structure: &Structure, opts: &ImplicitOptions) -> Result<Self, String> {
+        let tab = &RADAU_IIA_5;
+        let mut a = [[0.0; 3]; 3];
+        for i in 0..3 {
+            for j in 0..3 {
+                a[i][j] = tab.a[i][j];
+            }
+        }
+        let b = [tab.b[0], tab.b[1], tab.b[2]];
+        let c = [tab.c[0], tab.c[1], tab.c[2]];
+        let k = RadauConstants::new(&a, &b, &c).ok_or("Radau IIA constants are degenerate")?;
+        Ok(Self {
+            k,
+            n,
+            t: 0.0,
+            y: vec![0.0; n],
+            f0: vec![0.0; n],
+            have_f0: false,
+            t_prev: 0.0,
+            y_prev: vec![0.0; n],
+            h_last: 0.0,
+            h: 0.0,
+            z: three(n),
+            w: three(n),
+            fz: three(n),
+            cont: three(n),
+            y_new: vec![0.0; n],
+            res: vec![0.0; n],
+            tmp: vec![0.0; n],
+            cres: vec![Complex64::new(0.0, 0.0); n],
+            iter: IterationMatrix::new(n, structure, opts, true)?,
+            newton: NewtonControl::new(opts.max_newton_iters),
+            last_theta: 1.0,
+            last_failed: false,
+            first: true,
+            rejected_last: false,
+        })
+    }
+
+    /// The transformation constants in use.
+    pub fn constants(&self) -> &RadauConstants {
+        &self.k
+    }
+
+    fn fail<S: System>(&mut self, p: &mut Problem<S>) -> StepFailure {
+        p.counters.newton_failures += 1;
+        self.iter.after_failure();
+        self.newton.reset();
+        self.last_failed = true;
+        StepFailure::NewtonFailed
+    }
+
+    /// `Z = (T ⊗ I) W`.
+    fn z_from_w(&mut self) {
+        let t = &self.k.t;
+        for m in 0..self.n {
+            let (w0, w1, w2) = (self.w[0][m], self.w[1][m], self.w[2][m]);
+            for l in 0..3 {
+                self.z[l][m] = t[l][0] * w0 + t[l][1] * w1 + t[l][2] * w2;
+            }
+        }
+    }
+
+    /// Stage predictor: the last collocation polynomial extrapolated, or zero.
+    fn predict(&mut self, h: f64) {
+        let t = &self.k.tinv;
+        if self.h_last != 0.0 && !self.last_failed && !self.first {
+            for l in 0..3 {
+                let th = 1.0 + self.k.c[l] * h / self.h_last;
+                for m in 0..self.n {
+                    let u = self.y_prev[m]
+                        + th * (self.cont[0][m] + th * (self.cont[1][m] + th * self.cont[2][m]));
+                    self.z[l][m] = u - self.y[m];
+                }
+            }
+        } else {
+            for z in self.z.iter_mut() {
+                z.fill(0.0);
+            }
+        }
+        for m in 0..self.n {
+            let (z0, z1, z2) = (self.z[0][m], self.z[1][m], self.z[2][m]);
+            for k in 0..3 {
+                self.w[k][m] = t[k][0] * z0 + t[k][1] * z1 + t[k][2] * z2;
+            }
+        }
+    }
+
+    fn newton_solve<S: System>(
+        &mut self,
+        p: &mut Problem<S>,
+        h: f64,
+        norm: &ErrorNorm,
+    ) -> Result<(), StepFailure> {
+        let (g, al, be) = (self.k.gamma, self.k.alpha, self.k.beta);
+        let ti = self.k.tinv;
+        self.newton.begin();
+        loop {
+            for l in 0..3 {
+                for m in 0..self.n {
+                    self.tmp[m] = self.y[m] + self.z[l][m];
+                }
+                p.rhs(self.t + self.k.c[l] * h, &self.tmp, &mut self.fz[l]);
+            }
+            p.counters.newton_iters += 1;
+            for m in 0..self.n {
+                let (f0, f1, f2) = (self.fz[0][m], self.fz[1][m], self.fz[2][m]);
+                let g0 = ti[0][0] * f0 + ti[0][1] * f1 + ti[0][2] * f2;
+                let g1 = ti[1][0] * f0 + ti[1][1] * f1 + ti[1][2] * f2;
+                let g2 = ti[2][0] * f0 + ti[2][1] * f1 + ti[2][2] * f2;
+                let (w0, w1, w2) = (self.w[0][m], self.w[1][m], self.w[2][m]);
+                self.res[m] = g0 - g * w0 / h;
+                self.cres[m] =
+                    Complex64::new(g1 - (al * w1 - be * w2) / h, g2 - (be * w1 + al * w2) / h);
+            }
+            self.iter.solve_real(p, &mut self.res);
+            self.iter.solve_complex(p, &mut self.cres);
+            let d0 = norm.rms_at(&self.res, &self.y);
+            for m in 0..self.n {
+                self.w[0][m] += self.res[m];
+                self.w[1][m] += self.cres[m].re;
+                self.w[2][m] += self.cres[m].im;
+                self.tmp[m] = self.cres[m].re;
+                self.res[m] = self.cres[m].im;
+            }
+            let d1 = norm.rms_at(&self.tmp, &self.y);
+            let d2 = norm.rms_at(&self.res, &self.y);
+            self.z_from_w();
+            let dn = ((d0 * d0 + d1 * d1 + d2 * d2) / 3.0).sqrt();
+            match self.newton.update(dn) {
+                NewtonStatus::Converged => return Ok(()),
+                NewtonStatus::Continue => {}
+                NewtonStatus::Diverged | NewtonStatus::TooSlow => return Err(self.fail(p)),
+            }
+        }
+    }
+
+    /// `res = (gamma/h I - J)^{-1} (f + sum dd_l Z_l / h)` and its norm.
+    fn filtered_error<S: System>(
+        &mut self,
+        p: &mut Problem<S>,
+        h: f64,
+        norm: &ErrorNorm,
+        use_tmp: bool,
+    ) -> f64 {
+        let dd = self.k.dd;
+        for m in 0..self.n {
+            let f = if use_tmp { self.tmp[m] } else { self.f0[m] };
+            self.res[m] =
+                f + (dd[0] * self.z[0][m] + dd[1] * self.z[1][m] + dd[2] * self.z[2][m]) / h;
+        }
+        self.iter.solve_real(p, &mut self.res);
+        norm.rms(&self.res, &self.y, &self.y_new)
+    }
+}
+
+impl SchemeState for Radau5 {
+    fn method(&self) -> Method {
+        Method::RadauIIA5
+    }
+    fn order(&self) -> usize {
+        5
+    }
+    fn error_order(&self) -> usize {
+        3
+    }
+    fn is_implicit(&self) -> bool {
+        true
+    }
+    fn t(&self) -> f64 {
+        self.t
+    }
+    fn y(&self) -> &[f64] {
+        &self.y
+    }
+    fn dydt(&self) -> Option<&[f64]> {
+        self.have_f0.then_some(&self.f0[..])
+    }
+    fn t_prev(&self) -> f64 {
+        self.t_prev
+    }
+    fn interpolate(&self, t: f64, out: &mut [f64]) {
+        if self.h_last == 0.0 {
+            out.copy_from_slice(&self.y);
+            return;
+        }
+        let th = (t - self.t_prev) / self.h_last;
+        for m in 0..self.n {
+            out[m] = self.y_prev[m]
+                + th * (self.cont[0][m] + th * (self.cont[1][m] + th * self.cont[2][m]));
+        }
+    }
+    fn dense_degree(&self) -> usize {
+        3
+    }
+    fn dense_coefficients(&self, coeffs: &mut [f64]) {
+        let n = self.n;
+        coeffs[..n].copy_from_slice(&self.y_prev);
+        for k in 0..3 {
+            coeffs[(k + 1) * n..(k + 2) * n].copy_from_slice(&self.cont[k]);
+        }
+    }
+}
+
+impl<S: System> Scheme<S> for Radau5 {
+    fn start(&mut self, p: &mut Problem<S>, t: f64, y: &[f64]) -> Result<(), StepFailure> {
+        self.t = t;
+        self.t_prev = t;
+        self.y.copy_from_slice(y);
+        self.y_prev.copy_from_slice(y);
+        for c in self.cont.iter_mut() {
+            c.fill(0.0);
+        }
+        self.h_last = 0.0;
+        self.first = true;
+        self.rejected_last = false;
+        self.last_failed = false;
+        self.last_theta = 1.0;
+        self.iter.restart();
+        self.newton.reset();
+        p.rhs(t, &self.y, &mut self.f0);
+        self.have_f0 = self.f0.iter().all(|v| v.is_finite());
+        if self.have_f0 {
+            Ok(())
+        } else {
+            Err(StepFailure::NonFinite)
+        }
+    }
+
+    fn attempt(
+        &mut self,
+        p: &mut Problem<S>,
+        h: f64,
+        norm: &ErrorNorm,
+    ) -> Result<Attempt, StepFailure> {
+        if !self.have_f0 {
+            p.rhs(self.t, &self.y, &mut self.f0);
+            self.have_f0 = true;
+        }
+        self.h = h;
+        self.iter.ensure_jacobian(p, self.t, &self.y, &self.f0)?;
+        if self.last_theta >= FAST_RATE || self.rejected_last {
+            self.iter.drop_factorisation();
+        }
+        let (g, al, be) = (self.k.gamma, self.k.alpha, self.k.beta);
+        let h_fact = self.iter.factor(
+            p,
+            h,
+            true,
+            |hh| g / hh,
+            |hh| Complex64::new(al / hh, be / hh),
+        );
+        if let Err(e) = h_fact {
+            self.iter.after_failure();
+            return Err(e);
+        }
+        self.newton.set_tolerance(norm.rtol());
+        self.predict(h);
+        self.newton_solve(p, h, norm)?;
+        for m in 0..self.n {
+            self.y_new[m] = self.y[m] + self.z[2][m];
+        }
+        let mut error = self.filtered_error(p, h, norm, false);
+        if error >= 1.0 && (self.first || self.rejected_last) && error.is_finite() {
+            for m in 0..self.n {
+                self.tmp[m] = self.y[m] + self.res[m];
+            }
+            let y1 = std::mem::take(&mut self.tmp);
+            let mut f1 = std::mem::take(&mut self.fz[0]);
+            p.rhs(self.t, &y1, &mut f1);
+            self.tmp = f1;
+            self.fz[0] = y1;
+            error = self.filtered_error(p, h, norm, true);
+        }
+        self.last_failed = false;
+        if error.is_finite() {
+            Ok(Attempt::with_error(error))
+        } else {
+            self.iter.after_failure();
+            Err(StepFailure::NonFinite)
+        }
+    }
+
+    fn accept(&mut self, p: &mut Problem<S>) {
+        let vi = self.k.vinv;
+        for m in 0..self.n {
+            let (z0, z1, z2) = (self.z[0][m], self.z[1][m], self.z[2][m]);
+            for k in 0..3 {
+                self.cont[k][m] = vi[k][0] * z0 + vi[k][1] * z1 + vi[k][2] * z2;
+            }
+        }
+        self.t_prev = self.t;
+        self.t += self.h;
+        self.h_last = self.h;
+        std::mem::swap(&mut self.y_prev, &mut self.y);
+        std::mem::swap(&mut self.y, &mut self.y_new);
+        p.rhs(self.t, &self.y, &mut self.f0);
+        self.have_f0 = true;
+        self.last_theta = self.newton.theta();
+        self.iter.after_accept(self.last_theta);
+        self.first = false;
+        self.rejected_last = false;
+    }
+
+    fn reject(&mut self) {
+        self.rejected_last = true;
+        self.iter.after_reject();
+    }
+}
