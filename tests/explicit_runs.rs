@@ -168,3 +168,34 @@ fn forced_explicit_method_is_capped_on_a_stiff_problem() {
     // Rejections stay few: the cap, not trial and error, sets the step.
     assert!(s.rejected * 20 < s.accepted, "{s:?}");
 }
+
+/// The Arenstorf orbit (Hairer, Norsett and Wanner, Solving ODEs I, II.0)
+/// is periodic with period T = 17.0652165601579625588917206249: after one
+/// period the state returns to y0. Dormand–Prince 8(5,3) and 5(4) at a
+/// requested tolerance return to within a modest multiple of it (the
+/// orbit's close approaches to the moon amplify local errors, so the
+/// allowance is larger than for a contractive problem).
+#[test]
+fn arenstorf_returns_after_one_period() {
+    let case = ballast_models::get("arenstorf").unwrap();
+    for (method, tol, allowance) in [
+        (Method::DormandPrince853, 1e-10, 1e4),
+        (Method::DormandPrince54, 1e-10, 1e4),
+        (Method::DormandPrince54, 1e-7, 1e4),
+    ] {
+        let opts = Options::default()
+            .rtol(tol)
+            .atol(tol)
+            .method(method)
+            .output(Output::Final);
+        let sol = integrate(case.system.clone(), case.span, &case.y0, &opts).unwrap();
+        let err = sol
+            .y_final()
+            .iter()
+            .zip(&case.y0)
+            .map(|(a, b)| (a - b).abs())
+            .fold(0.0, f64::max);
+        eprintln!("Arenstorf return error with {method} at tol {tol:e}: {err:.3e} ({} steps)", sol.stats().accepted);
+        assert!(err < allowance * tol, "{method} at {tol:e}: return error {err:e}");
+    }
+}

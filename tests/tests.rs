@@ -3,3 +3,4 @@
 mod common;
 mod contract;
 mod explicit_runs;
+mod switching;

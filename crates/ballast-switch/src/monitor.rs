@@ -29,6 +29,10 @@ const ESTIMATE_TOL: f64 = 1e-2;
 /// Rejections in a row that trigger a fresh estimate (the stiffness may have grown).
 const REJECTIONS_TO_ESTIMATE: usize = 2;
 
+/// The free stage estimate is looked at every this many accepted steps: it
+/// costs a pass over the stages, small but not nothing on a cheap system.
+const STAGE_CHECK_EVERY: usize = 4;
+
 /// The latest spectral estimate.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub(crate) struct Spectrum {
@@ -72,15 +76,18 @@ impl Monitor {
         self.latest
     }
 
-    /// Whether a full estimate is due after an accepted step.
-    pub(crate) fn due(&self, stage: Option<f64>, th: &SwitchThresholds) -> bool {
+    /// Whether a full estimate is due after an accepted step of `scheme`.
+    pub(crate) fn due(&self, scheme: &dyn SchemeState, th: &SwitchThresholds) -> bool {
         if self.latest.is_none() || self.steps_since >= th.estimate_interval {
             return true;
         }
         if self.rejections >= REJECTIONS_TO_ESTIMATE {
             return true;
         }
-        match (stage, self.stage_ref) {
+        if self.steps_since % STAGE_CHECK_EVERY != 0 {
+            return false;
+        }
+        match (scheme.stage_spectral_estimate(), self.stage_ref) {
             (Some(s), Some(r)) if r > 0.0 => (s - r).abs() > th.stage_change_trigger * r,
             _ => false,
         }

@@ -248,7 +248,7 @@ impl<S: System> Switcher<S> {
         }
         m.note_accept();
         self.since_switch += 1;
-        if m.due(active.stage_spectral_estimate(), &cfg.switching) {
+        if m.due(active.as_ref(), &cfg.switching) {
             m.estimate(p, active.as_ref(), stats);
             self.refresh_cap(active.as_ref(), cfg);
         } else if matches!(active.method(), Method::Adams) {

@@ -1,0 +1,218 @@
+//! The switching controller against problems with known answers
+//! (issue 8): references from `ballast-models`, each with its source.
+
+use ballast::stability::method_region;
+use ballast::{integrate, Complex64, Method, Options, Output, Solution, SwitchPair};
+use ballast_models::{get, Flame, LinearSpectrum, StiffnessRamp};
+
+use crate::common::scaled_error;
+
+fn default_opts(rtol: f64, atol: f64) -> Options {
+    Options::default().rtol(rtol).atol(atol)
+}
+
+/// Which method was active at time `t`, from the switch log.
+fn active_at(sol: &Solution, first: Method, t: f64) -> Method {
+    let mut m = first;
+    for sw in sol.switches() {
+        if sw.t <= t {
+            m = sw.to;
+        }
+    }
+    m
+}
+
+/// Flame propagation, delta = 1e-4 (O'Malley 1991; closed form through
+/// Lambert W, `Flame::exact`): the run starts explicit, switches to the
+/// implicit scheme shortly after ignition (t ~ 1/delta), and matches the
+/// closed form.
+#[test]
+fn flame_switches_after_ignition() {
+    let flame = Flame::new(1e-4);
+    let span = flame.span();
+    let y0 = flame.initial_value();
+    let sol = integrate(flame.clone(), span, &y0, &default_opts(1e-6, 1e-9)).unwrap();
+    let first = sol.switches().first().expect("a switch to the implicit scheme");
+    assert_eq!(first.from, Method::DormandPrince54);
+    assert_eq!(first.to, Method::RadauIIA5);
+    // Ignition is at t ~ 1/delta = 1e4; the switch comes after it, early in
+    // the stiff phase.
+    assert!(first.t > 0.95e4 && first.t < 1.3e4, "switch at t = {}", first.t);
+    for &t in &[5e3, 9.9e3, 1.0e4, 1.01e4, 1.5e4, 2e4] {
+        let y = sol.eval(t).unwrap();
+        let exact = flame.exact(t);
+        // Closed form; global error a modest multiple of the tolerance.
+        assert!(
+            scaled_error(&y, &exact, 1e-6, 1e-9) < 100.0,
+            "t = {t}: {} vs {}",
+            y[0],
+            exact[0]
+        );
+    }
+}
+
+/// Non-stiff problems (Arenstorf orbit, HNW I II.0; Pleiades, HNW I II.10):
+/// no switch, and the work stays within 5% of Dormand–Prince 5(4) alone.
+#[test]
+fn nonstiff_problems_do_not_switch() {
+    for name in ["arenstorf", "pleiades"] {
+        let case = get(name).unwrap();
+        let opts = default_opts(1e-7, 1e-9).output(Output::Final);
+        let auto = integrate(case.system.clone(), case.span, &case.y0, &opts).unwrap();
+        let dp = integrate(
+            case.system.clone(),
+            case.span,
+            &case.y0,
+            &opts.clone().method(Method::DormandPrince54),
+        )
+        .unwrap();
+        assert!(auto.switches().is_empty(), "{name}: {:?}", auto.switches());
+        let (wa, wd) = (auto.stats().rhs_evals as f64, dp.stats().rhs_evals as f64);
+        assert!(wa <= 1.05 * wd, "{name}: switching {wa} vs DP5(4) {wd} f calls");
+        // Both against the published reference (source in the model registry).
+        let tol = 1e-7f64.max(10f64.powf(-case.reference.digits));
+        assert!(scaled_error(auto.y_final(), &case.reference.y, tol, 1e-6) < 2000.0);
+    }
+}
+
+/// Stiff kinetics (Robertson to 1e11; HIRES — Bari test set, references in
+/// `ballast-models`): the run switches to the implicit scheme early and is
+/// as accurate as the implicit scheme alone.
+#[test]
+fn stiff_kinetics_switch_early() {
+    for (name, early) in [("robertson-long", 1e-1), ("hires", 50.0)] {
+        let case = get(name).unwrap();
+        let opts = default_opts(1e-6, 1e-10).output(Output::Final);
+        let auto = integrate(case.system.clone(), case.span, &case.y0, &opts).unwrap();
+        let radau = integrate(
+            case.system.clone(),
+            case.span,
+            &case.y0,
+            &opts.clone().method(Method::RadauIIA5),
+        )
+        .unwrap();
+        let first = auto.switches().first().expect("switches to implicit");
+        assert_eq!(first.to, Method::RadauIIA5);
+        assert!(first.t < early, "{name}: first switch at t = {}", first.t);
+        let ea = scaled_error(auto.y_final(), &case.reference.y, 1e-6, 1e-10);
+        let er = scaled_error(radau.y_final(), &case.reference.y, 1e-6, 1e-10);
+        assert!(ea < 10.0 * er.max(1.0), "{name}: switching error {ea}, Radau {er}");
+    }
+}
+
+/// Van der Pol with mu = 1000 (HNW II IV.1; reference in `ballast-models`):
+/// accurate against the reference; the switch log shows the explicit and
+/// implicit phases of the relaxation oscillation.
+#[test]
+fn van_der_pol_mu_1000() {
+    let case = get("vanderpol-mu1000").unwrap();
+    let opts = default_opts(1e-6, 1e-8).output(Output::Final);
+    let sol = integrate(case.system.clone(), case.span, &case.y0, &opts).unwrap();
+    assert!(!sol.switches().is_empty());
+    // The position component is O(2); a loose relative check of the
+    // reference (the fast transitions amplify local errors).
+    let err = (sol.y_final()[0] - case.reference.y[0]).abs();
+    assert!(err < 1e-3, "y1 error {err:e}; switches {}", sol.switches().len());
+}
+
+/// A linear system with known eigenvalues (`LinearSpectrum`, exact solution
+/// through its eigen-decomposition): every accepted explicit step keeps
+/// `|R(h lambda_i)| <= 1` for all true eigenvalues, checked after the run
+/// from the recorded steps; and the end state matches the closed form.
+#[test]
+fn explicit_steps_stay_inside_the_region_for_true_eigenvalues() {
+    for (real, pairs) in [
+        (vec![-1.0, -30.0, -2000.0], vec![]),
+        (vec![-1.0, -5.0], vec![(-300.0, 400.0)]),
+    ] {
+        let model = LinearSpectrum::new(&real, &pairs);
+        let y0 = model.initial_value();
+        let eig: Vec<Complex64> = model
+            .eigenvalues()
+            .into_iter()
+            .map(|(re, im)| Complex64::new(re, im))
+            .collect();
+        for method in [Method::DormandPrince54, Method::default()] {
+            let sol = integrate(model.clone(), (0.0, 3.0), &y0, &default_opts(1e-6, 1e-9).method(method))
+                .unwrap();
+            let exact = model.exact(3.0);
+            assert!(scaled_error(sol.y_final(), &exact, 1e-6, 1e-9) < 100.0);
+            let first = match method {
+                Method::Switching(_) => Method::DormandPrince54,
+                m => m,
+            };
+            let r = method_region(Method::DormandPrince54).unwrap().function();
+            let times = sol.times();
+            let mut explicit_steps = 0;
+            for w in times.windows(2) {
+                if active_at(&sol, first, w[0]) != Method::DormandPrince54 {
+                    continue;
+                }
+                explicit_steps += 1;
+                let h = w[1] - w[0];
+                for &l in &eig {
+                    let g = r.eval(l * h).unwrap().norm();
+                    assert!(g <= 1.0 + 1e-9, "{method}: t = {}, h = {h:e}, |R(h lambda)| = {g}", w[0]);
+                }
+            }
+            assert!(explicit_steps > 0);
+        }
+    }
+}
+
+/// A stiffness ramp, lambda(t) = -1e6^(t/10) (`StiffnessRamp`, closed form
+/// y = cos t): while explicit, the step follows the stability limit
+/// `r(pi)/|lambda(t)|` of Dormand–Prince 5(4) (never above it); the switch
+/// comes once that limit makes the explicit scheme the more expensive one.
+#[test]
+fn stiffness_ramp_cap_follows_the_limit() {
+    let ramp = StiffnessRamp::default();
+    let y0 = ramp.initial_value();
+    let opts = default_opts(1e-6, 1e-9);
+    let dp = integrate(
+        ramp.clone(),
+        (0.0, 4.0),
+        &y0,
+        &opts.clone().method(Method::DormandPrince54),
+    )
+    .unwrap();
+    let real_reach = method_region(Method::DormandPrince54)
+        .unwrap()
+        .summary()
+        .real_interval
+        .unwrap();
+    let mut capped_like = 0;
+    for w in dp.times().windows(2) {
+        let h = w[1] - w[0];
+        // The eigenvalue grows within the step: use its value at the end.
+        let limit = real_reach / ramp.lambda(w[1]).abs();
+        assert!(h <= 1.02 * limit, "t = {}: h = {h:e} above the limit {limit:e}", w[0]);
+        if h > 0.8 * limit {
+            capped_like += 1;
+        }
+    }
+    assert!(capped_like > 100, "the cap should hold most late steps");
+    assert!((dp.y_final()[0] - 4f64.cos()).abs() < 1e-5);
+
+    let auto = integrate(ramp.clone(), (0.0, 10.0), &y0, &opts).unwrap();
+    let sw = auto.switches().first().expect("switches to implicit");
+    // Explicit cost per unit time at the switch: about 6 f calls per step of
+    // r/|lambda|; it must exceed what the implicit phase then spends per
+    // unit time (measured from a Radau run over the rest of the span).
+    let explicit_rate = 6.0 * ramp.lambda(sw.t).abs() / real_reach;
+    let rest = integrate(
+        ramp.clone(),
+        (sw.t, 10.0),
+        &[ramp.exact(sw.t)[0]],
+        &opts.clone().method(Method::RadauIIA5),
+    )
+    .unwrap();
+    let implicit_rate = rest.stats().rhs_evals as f64 / (10.0 - sw.t);
+    assert!(
+        explicit_rate > 0.5 * implicit_rate,
+        "switched at t = {} where explicit costs {explicit_rate:.1}/unit, implicit {implicit_rate:.1}/unit",
+        sw.t
+    );
+    assert!((auto.y_final()[0] - 10f64.cos()).abs() < 1e-5);
+    let _ = SwitchPair::AdamsBdf;
+}
