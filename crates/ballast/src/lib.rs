@@ -33,6 +33,8 @@
 mod error;
 mod events;
 mod options;
+#[cfg(feature = "plot")]
+pub mod plot;
 mod run;
 mod solution;
 

@@ -467,7 +467,17 @@ fn one_step_reach(rat: &Rational, bound: f64, u: Complex64, c: f64) -> f64 {
     loop {
         let hi = (lo + c * (1.0 + lo)).min(limit);
         if unstable(hi) {
-            return bisect(lo, hi, unstable);
+            let r = bisect(lo, hi, unstable);
+            // Polish to the exact boundary |R| = 1 where it is crossed
+            // (not merely touched): forward Euler's -2 comes out exactly.
+            let a = r * (1.0 - 1e-9);
+            if rat.modulus(u * a) <= 1.0 {
+                return bisect(a, hi, |x| {
+                    let m = rat.modulus(u * x);
+                    m.is_nan() || m > 1.0
+                });
+            }
+            return r;
         }
         if hi >= limit {
             return if bound.is_finite() { hi } else { f64::INFINITY };
