@@ -30,6 +30,7 @@
 #![forbid(unsafe_code)]
 #![deny(missing_docs)]
 
+pub mod compare;
 mod error;
 mod events;
 mod options;

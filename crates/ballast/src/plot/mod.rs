@@ -1,5 +1,5 @@
 //! SVG pictures through plotters (the `plot` feature).
 //!
-//! - [`regions`]: the stability region of every method, one panel per family.
+//! - [`work_precision`]: achieved error against wall time for a comparison report.
 
-pub mod regions;
+pub mod work_precision;
