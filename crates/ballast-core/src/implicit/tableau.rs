@@ -144,13 +144,13 @@ pub static TR_BDF2: ImplicitTableau = ImplicitTableau {
     stiffly_accurate: true,
 };
 
-/// ESDIRK4(3)6L[2]SA: six stages, order 4, embedded order 3, L-stable,
+/// `ESDIRK4(3)6L[2]SA`: six stages, order 4, embedded order 3, L-stable,
 /// stiffly accurate, `gamma = 1/4`, stage order 2.
 ///
 /// From memory of Kennedy and Carpenter: these are the coefficients of the
-/// implicit part of their ARK4(3)6L[2]SA (Appl. Numer. Math. 44 (2003)
-/// 139–181, Table 5), which the review NASA/TM-2016-219173 lists as
-/// ESDIRK4(3)6L[2]SA. `c = (0, 1/2, 83/250, 31/50, 17/20, 1)`. Confirmed by
+/// implicit part of their `ARK4(3)6L[2]SA` (Appl. Numer. Math. 44 (2003) 139–181),
+/// which the review NASA/TM-2016-219173 lists as
+/// `ESDIRK4(3)6L[2]SA`. `c = (0, 1/2, 83/250, 31/50, 17/20, 1)`. Confirmed by
 /// the tests below: the order-4 conditions for `b`, the order-3 conditions
 /// for `bhat`, stiff accuracy and `R(-inf) = 0`.
 pub static ESDIRK_43: ImplicitTableau = ImplicitTableau {
