@@ -1,6 +1,7 @@
 //! Building a scheme for a method: the one place that maps [`Method`] to code.
 
 use crate::explicit::{tableau, ExplicitRk};
+use crate::implicit;
 use crate::method::Method;
 use crate::options::SchemeOptions;
 use crate::scheme::Scheme;
@@ -30,6 +31,13 @@ pub fn build<S: System>(
     let rk = |t: &'static tableau::Tableau| -> Result<Box<dyn Scheme<S>>, BuildError> {
         Ok(Box::new(ExplicitRk::new(t, n)))
     };
+    let dirk =
+        |t: &'static implicit::tableau::ImplicitTableau| -> Result<Box<dyn Scheme<S>>, BuildError> {
+            Ok(Box::new(
+                implicit::Dirk::new(t, n, structure, &opts.implicit)
+                    .map_err(BuildError::InvalidOptions)?,
+            ))
+        };
     match method {
         Method::ForwardEuler => rk(&tableau::FORWARD_EULER),
         Method::Heun => rk(&tableau::HEUN),
@@ -42,6 +50,18 @@ pub fn build<S: System>(
             structure,
             &opts.implicit,
         )?)),
+        Method::BackwardEuler => dirk(&implicit::tableau::BACKWARD_EULER),
+        Method::Trapezoid => dirk(&implicit::tableau::TRAPEZOID),
+        Method::TrBdf2 => dirk(&implicit::tableau::TR_BDF2),
+        Method::Esdirk43 => dirk(&implicit::tableau::ESDIRK_43),
+        Method::RadauIIA5 => Ok(Box::new(
+            implicit::Radau5::new(n, structure, &opts.implicit)
+                .map_err(BuildError::InvalidOptions)?,
+        )),
+        Method::Ros3p => Ok(Box::new(
+            implicit::Rosenbrock::new(&implicit::tableau::ROS3P, n, structure, &opts.implicit)
+                .map_err(BuildError::InvalidOptions)?,
+        )),
         other => Err(BuildError::NotASingleScheme(other)),
     }
 }

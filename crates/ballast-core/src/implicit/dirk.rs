@@ -20,7 +20,9 @@
 //!   divided difference of `f` over the last two steps (`h/2 (f_{n+1} - f_n)`
 //!   on the first step, when there is no history).
 //!
-//! Dense output: linear for backward Euler, the cubic Hermite interpolant
+//! Stage predictors: the last step's dense output extrapolated; on the
+//! first step `base + h gamma k_{i-1}`; after a failed Newton iteration
+//! `y_n`. Dense output: linear for backward Euler, the cubic Hermite interpolant
 //! otherwise (none of the other tableaux' publications is used for it).
 
 use super::hermite;
@@ -159,7 +161,8 @@ impl Dirk {
             for m in 0..self.n {
                 self.stage[m] += self.res[m];
             }
-            match self.newton.update(norm.rms_at(&self.res, &self.y)) {
+            let dn = norm.rms_at(&self.res, &self.y);
+            match self.newton.update(dn) {
                 NewtonStatus::Converged => return Ok(()),
                 NewtonStatus::Continue => {}
                 NewtonStatus::Diverged | NewtonStatus::TooSlow => return Err(self.fail(p)),
@@ -297,12 +300,18 @@ impl<S: System> Scheme<S> for Dirk {
                     }
                 }
             }
-            if self.h_last != 0.0 && !self.last_failed {
+            if self.last_failed {
+                self.stage.copy_from_slice(&self.y);
+            } else if self.h_last != 0.0 {
                 let mut pred = std::mem::take(&mut self.stage);
                 self.dense_eval(ti, &mut pred);
                 self.stage = pred;
             } else {
-                self.stage.copy_from_slice(&self.y);
+                // No history: assume f(Y_i) equals the last stage slope.
+                let slope = if i > 0 { &self.k[i - 1] } else { &self.f0 };
+                for m in 0..n {
+                    self.stage[m] = self.base[m] + h * g * slope[m];
+                }
             }
             self.solve_stage(p, ti, h, h_fact, norm)?;
             self.theta_max = self.theta_max.max(self.newton.theta());

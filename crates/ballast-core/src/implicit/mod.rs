@@ -30,3 +30,6 @@ pub mod tableau;
 pub use dirk::Dirk;
 pub use radau5::Radau5;
 pub use rosenbrock::Rosenbrock;
+
+#[cfg(test)]
+mod tests;

@@ -15,6 +15,12 @@
 //! a Rosenbrock method rests on the exact Jacobian. A stage whose argument
 //! equals the previous stage's reuses its `f` value (ROS3P's third stage).
 //!
+//! The error estimate `sum (m_i - mhat_i) u_i` is passed through
+//! `(I - h gamma J)^{-1}` (one more solve with the same factorisation), as
+//! for the implicit Runge–Kutta schemes (Hairer and Wanner II, IV.8, eq.
+//! (8.20); common practice): the embedded solution does not damp stiff
+//! components, and unfiltered they would dictate the step.
+//!
 //! Dense output: the cubic Hermite interpolant (order 3), since Lang and
 //! Verwer publish no continuous extension.
 
@@ -279,6 +285,13 @@ impl<S: System> Scheme<S> for Rosenbrock {
                 self.err[m] += ei * self.u[i][m];
             }
         }
+        // Filter (I - h gamma J)^{-1}: the embedded solution is not
+        // L-stable, and unfiltered its stiff components would dominate.
+        let scale = 1.0 / (h * g);
+        for v in self.err.iter_mut() {
+            *v *= scale;
+        }
+        self.iter.solve_real(p, &mut self.err);
         let error = norm.rms(&self.err, &self.y, &self.y_new);
         if error.is_finite() {
             Ok(Attempt::with_error(error))
