@@ -1,6 +1,6 @@
 //! Building a scheme for a method: the one place that maps [`Method`] to code.
 
-use crate::explicit::{tableau, ExplicitRk};
+use crate::explicit::{tableau, Dop853, ExplicitRk};
 use crate::implicit;
 use crate::method::Method;
 use crate::options::SchemeOptions;
@@ -44,6 +44,8 @@ pub fn build<S: System>(
         Method::Rk4 => rk(&tableau::RK4),
         Method::BogackiShampine32 => rk(&tableau::BOGACKI_SHAMPINE_32),
         Method::DormandPrince54 => rk(&tableau::DORMAND_PRINCE_54),
+        Method::Tsitouras54 => rk(&tableau::TSITOURAS_54),
+        Method::DormandPrince853 => Ok(Box::new(Dop853::new(n))),
         Method::Adams => Ok(Box::new(crate::multistep::Adams::new(n))),
         Method::Bdf => Ok(Box::new(crate::multistep::Bdf::new(
             n,

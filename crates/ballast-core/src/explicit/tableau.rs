@@ -212,3 +212,111 @@ pub static DORMAND_PRINCE_54: Tableau = Tableau {
     // Stages 6 and 7 both sit at c = 1 (Hairer and Wanner II, IV.2, eq. (2.21)).
     stiffness_pair: Some((5, 6)),
 };
+
+/// `k theta^2 (theta - r1)(theta - r2)` as monomial coefficients of
+/// `theta^1..theta^4`: the factored form in which Tsitouras (2011) prints
+/// most of his continuous-extension weights.
+const fn theta2_two_roots(k: f64, r1: f64, r2: f64) -> [f64; 4] {
+    [0.0, k * r1 * r2, -k * (r1 + r2), k]
+}
+
+/// `k theta^2 (theta^2 - p theta + q)` as monomial coefficients of `theta^1..theta^4`.
+const fn theta2_quadratic(k: f64, p: f64, q: f64) -> [f64; 4] {
+    [0.0, k * q, -k * p, k]
+}
+
+/// `k theta (theta - r)(theta^2 - p theta + q)` as monomial coefficients of `theta^1..theta^4`.
+const fn theta_root_quadratic(k: f64, r: f64, p: f64, q: f64) -> [f64; 4] {
+    [-k * r * q, k * (q + r * p), -k * (p + r), k]
+}
+
+/// Tsitouras 5(4), FSAL, 7 stages (Ch. Tsitouras, Runge–Kutta pairs of
+/// order 5(4) satisfying only the first column simplifying assumption,
+/// Comput. Math. Appl. 62 (2011) 770–775). Coefficients from memory of that
+/// paper; the order-condition tests in `explicit::tests` confirm them
+/// (order 5, embedded order 4, continuous extension of order 4).
+///
+/// Dense output: the paper's fourth-order continuous extension, printed
+/// there in factored form, e.g. `b_7(theta) = 5/2 theta^2 (theta - 1)(theta - 3/5)`;
+/// the factors are expanded to monomials here at compile time.
+pub static TSITOURAS_54: Tableau = Tableau {
+    method: Method::Tsitouras54,
+    c: &[0.0, 0.161, 0.327, 0.9, 0.9800255409045097, 1.0, 1.0],
+    a: &[
+        &[],
+        &[0.161],
+        &[-0.008480655492356989, 0.335480655492357],
+        &[2.897153057105493, -6.359448489975075, 4.3622954328695815],
+        &[
+            5.325864828439257,
+            -11.748883564062828,
+            7.4955393428898365,
+            -0.09249506636175525,
+        ],
+        &[
+            5.86145544294642,
+            -12.92096931784711,
+            8.159367898576159,
+            -0.071584973281401,
+            -0.028269050394068383,
+        ],
+        &[
+            0.09646076681806523,
+            0.01,
+            0.4798896504144996,
+            1.379008574103742,
+            -3.290069515436081,
+            2.324710524099774,
+        ],
+    ],
+    b: &[
+        0.09646076681806523,
+        0.01,
+        0.4798896504144996,
+        1.379008574103742,
+        -3.290069515436081,
+        2.324710524099774,
+        0.0,
+    ],
+    // b - bhat, from memory of the paper's table of the embedded weights.
+    e: Some(&[
+        -0.00178001105222577714,
+        -0.0008164344596567469,
+        0.007880878010261995,
+        -0.1447110071732629,
+        0.5823571654525552,
+        -0.45808210592918697,
+        1.0 / 66.0,
+    ]),
+    order: 5,
+    error_order: 4,
+    fsal: true,
+    dense: Some(&[
+        &theta_root_quadratic(
+            -1.0530884977290216,
+            1.3299890189751412,
+            1.4364028541716351,
+            0.7139816917074209,
+        ),
+        &theta2_quadratic(0.1017, 2.1966568338249754, 1.2949852507374631),
+        &theta2_quadratic(
+            2.490627285651252793,
+            2.38535645472061657,
+            1.57803468208092486,
+        ),
+        &theta2_two_roots(
+            -16.54810288924490272,
+            1.21712927295533244,
+            0.61620406037800089,
+        ),
+        &theta2_two_roots(
+            47.37952196281928122,
+            1.203071208372362603,
+            0.658047292653547382,
+        ),
+        &theta2_two_roots(-34.87065786149660974, 1.2, 2.0 / 3.0),
+        &theta2_two_roots(2.5, 1.0, 0.6),
+    ]),
+    // Stages 6 and 7 both sit at c = 1 (Hairer and Wanner II, IV.2).
+    stiffness_pair: Some((5, 6)),
+};
