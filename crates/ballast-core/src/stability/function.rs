@@ -47,17 +47,24 @@ impl StabilityFunction {
     /// From an explicit Runge–Kutta tableau (its `a` rows are read as the
     /// strictly lower triangle of `A`).
     pub fn from_explicit(t: &Tableau) -> Self {
-        let s = t.stages();
+        Self::from_explicit_rows(t.a, t.b)
+    }
+
+    /// From the rows of a strictly lower-triangular `A` (row `i` has at
+    /// most `i` entries; missing entries are 0) and the weights `b`; rows
+    /// beyond `b.len()` (e.g. dense-output stages) are ignored.
+    pub fn from_explicit_rows(rows: &[&[f64]], b: &[f64]) -> Self {
+        let s = b.len();
         let mut a = vec![0.0; s * s];
-        for (i, row) in t.a.iter().enumerate() {
-            for (j, &x) in row.iter().enumerate() {
+        for (i, row) in rows.iter().take(s).enumerate() {
+            for (j, &x) in row.iter().take(i).enumerate() {
                 a[i * s + j] = x;
             }
         }
         StabilityFunction::RungeKutta {
             stages: s,
             a,
-            b: t.b.to_vec(),
+            b: b.to_vec(),
         }
     }
 
