@@ -256,12 +256,12 @@ pub struct Rational {
 impl Rational {
     /// `|R(z)| = |P(z)| / |Q(z)|` (infinite at a pole).
     pub fn modulus(&self, z: Complex64) -> f64 {
-        let num = poly::eval_real(&self.p, z).norm();
-        let den = poly::eval_real(&self.q, z).norm();
+        let num = poly::eval_real(&self.p, z).norm_sqr();
+        let den = poly::eval_real(&self.q, z).norm_sqr();
         if den == 0.0 {
             f64::INFINITY
         } else {
-            num / den
+            (num / den).sqrt()
         }
     }
 

@@ -79,7 +79,7 @@ pub(super) fn finite(z: Complex64) -> bool {
 /// Indices of tabulated rays whose angle lies within the arc swept by the
 /// segment `a -> b` as seen from the origin.
 pub(super) fn rays_crossed(a: Complex64, b: Complex64) -> std::ops::Range<usize> {
-    if !finite(a) || !finite(b) || a.norm() == 0.0 || b.norm() == 0.0 {
+    if !finite(a) || !finite(b) || a.norm_sqr() == 0.0 || b.norm_sqr() == 0.0 {
         return 0..0;
     }
     let aa = a.arg().rem_euclid(2.0 * PI);
@@ -136,7 +136,7 @@ pub(super) fn crossing(
             .iter()
             .copied()
             .filter(|&z| finite(z))
-            .min_by(|x, y| (x - guess).norm().total_cmp(&(y - guess).norm()))
+            .min_by(|x, y| (x - guess).norm_sqr().total_cmp(&(y - guess).norm_sqr()))
             .unwrap_or(guess)
     };
     let (mut a, mut b, mut fa, mut fb) = (pa, pb, fa, fb);

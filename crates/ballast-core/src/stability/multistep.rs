@@ -328,14 +328,14 @@ impl CharPoly {
             return ([-c0 / c1, inf], 1);
         }
         let a = poly::eval_real(&self.z_coeffs[2], zeta);
-        if a.norm() == 0.0 {
+        if a.norm_sqr() == 0.0 {
             return ([-c0 / c1, inf], 2);
         }
         // Stable quadratic formula: q = -(b + sign sqrt(b^2 - 4ac))/2.
         let d = (c1 * c1 - a * c0 * 4.0).sqrt();
         let s = if (c1.conj() * d).re >= 0.0 { d } else { -d };
         let q = -(c1 + s) * 0.5;
-        if q.norm() == 0.0 {
+        if q.norm_sqr() == 0.0 {
             return ([Complex64::new(0.0, 0.0); 2], 2);
         }
         ([q / a, c0 / q], 2)

@@ -115,7 +115,7 @@ pub(crate) fn roots(c: &[Complex64]) -> Vec<Complex64> {
 /// [`roots`].
 pub(crate) fn all_roots_inside(c: &[Complex64]) -> bool {
     let mut n = c.len();
-    while n > 0 && c[n - 1].norm() == 0.0 {
+    while n > 0 && c[n - 1].norm_sqr() == 0.0 {
         n -= 1;
     }
     if n == 0 {
@@ -129,7 +129,7 @@ pub(crate) fn all_roots_inside(c: &[Complex64]) -> bool {
     let mut deg = n - 1;
     while deg > 0 {
         let (a0, an) = (a[0], a[deg]);
-        if a0.norm() >= an.norm() {
+        if a0.norm_sqr() >= an.norm_sqr() {
             return false;
         }
         let can = an.conj();
@@ -139,7 +139,7 @@ pub(crate) fn all_roots_inside(c: &[Complex64]) -> bool {
         for j in 0..deg {
             let q = can * a[j + 1] - a0 * a[deg - j - 1].conj();
             next[j] = q;
-            scale = scale.max(q.norm());
+            scale = scale.max(q.re.abs().max(q.im.abs()));
         }
         if scale == 0.0 || !scale.is_finite() {
             return false;
