@@ -1,0 +1,230 @@
+//! Compares methods on a published test problem: achieved error against work.
+//!
+//! ```text
+//! cargo run --release --example compare                  # lists the models
+//! cargo run --release --example compare -- robertson     # one model
+//! cargo run --release --example compare -- all           # every model, then a summary
+//!     [--rtol 1e-4,1e-6,1e-8] [--repeats 5] [--out target/compare]
+//! ```
+//!
+//! For each model it runs every sensible method (and the switching
+//! default) at each tolerance, measures the error at the end of the span
+//! against the model's reference solution (its source is printed), prints
+//! the table, names the fastest adequate run per tolerance, gives the cost
+//! of the switching default relative to the best single method, and for a
+//! banded model the cost of the banded Jacobian relative to a dense one.
+//! It writes `work-precision-<model>.svg` and `<model>.csv` to the output
+//! directory.
+
+#[allow(dead_code)] // `lineup::short` serves the benches
+mod lineup;
+
+use std::path::PathBuf;
+
+use ballast::compare::{Report, Study};
+use ballast::{Method, SwitchPair};
+use ballast_models::Case;
+
+use lineup::DENSE_SUFFIX;
+
+struct Settings {
+    rtols: Vec<f64>,
+    repeats: usize,
+    out: PathBuf,
+}
+
+fn parse(args: &[String]) -> Result<(Vec<String>, Settings), String> {
+    let mut s = Settings {
+        rtols: vec![1e-4, 1e-6, 1e-8],
+        repeats: 5,
+        out: PathBuf::from("target/compare"),
+    };
+    let mut names = Vec::new();
+    let mut it = args.iter();
+    while let Some(a) = it.next() {
+        let mut value = |flag: &str| {
+            it.next()
+                .cloned()
+                .ok_or_else(|| format!("{flag} needs a value"))
+        };
+        match a.as_str() {
+            "--rtol" => {
+                s.rtols = value("--rtol")?
+                    .split(',')
+                    .map(|v| {
+                        v.trim()
+                            .parse::<f64>()
+                            .map_err(|e| format!("--rtol {v}: {e}"))
+                    })
+                    .collect::<Result<_, _>>()?;
+            }
+            "--repeats" => {
+                s.repeats = value("--repeats")?
+                    .parse()
+                    .map_err(|e| format!("--repeats: {e}"))?;
+            }
+            "--out" => s.out = PathBuf::from(value("--out")?),
+            flag if flag.starts_with("--") => return Err(format!("unknown option {flag}")),
+            name => names.push(name.to_string()),
+        }
+    }
+    Ok((names, s))
+}
+
+fn list() {
+    println!("usage: cargo run --release --example compare -- <model>|all [--rtol a,b,..] [--repeats n] [--out dir]\n");
+    println!("models:");
+    for case in ballast_models::all() {
+        println!(
+            "  {:<18} {:>5} eq.  {:<9} {}",
+            case.name,
+            case.dim(),
+            format!("{:?}", case.character),
+            case.description
+        );
+    }
+}
+
+/// One model's study, printed and written out.
+fn study(case: &Case, s: &Settings) -> Result<Report, String> {
+    let entries = lineup::entries(case, &lineup::full(case.character));
+    let floor = if case.reference.floor > 0.0 {
+        case.reference.floor
+    } else {
+        // Smallest atol of the study (atol = 1e-3 rtol, the study's default).
+        s.rtols.iter().fold(f64::INFINITY, |m, &r| m.min(r)) * 1e-3
+    };
+    let source = format!(
+        "{} (trusted to {} digits)",
+        case.reference.source, case.reference.digits
+    );
+    let mut study = Study::new(case.system.clone(), case.span, &case.y0)
+        .name(case.name)
+        .tolerances(s.rtols.iter().copied())
+        .repeats(s.repeats)
+        .reference(case.reference.y.clone(), &source)
+        .error_floor(floor);
+    for e in entries {
+        study = study.contender(&e.label, e.options);
+    }
+    let report = study.run().map_err(|e| e.to_string())?;
+    println!("{}: {}\n", case.name, case.description);
+    println!("{report}");
+    println!("winners (fastest run with error <= 10 x rtol; if none, fastest within 10 x the best error):");
+    for w in report.winners() {
+        println!("  {w}");
+    }
+    let trusted = 10f64.powf(-case.reference.digits);
+    if report
+        .rows()
+        .iter()
+        .any(|r| r.error.is_some_and(|e| e < trusted))
+    {
+        println!("  (errors below {trusted:.0e} are below the reference's trusted digits)");
+    }
+    println!();
+    std::fs::create_dir_all(&s.out).map_err(|e| format!("{}: {e}", s.out.display()))?;
+    let csv = s.out.join(format!("{}.csv", case.name));
+    report.write_csv(&csv).map_err(|e| e.to_string())?;
+    println!("wrote {}", csv.display());
+    #[cfg(feature = "plot")]
+    {
+        let svg = s.out.join(format!("work-precision-{}.svg", case.name));
+        report.write_svg(&svg).map_err(|e| e.to_string())?;
+        println!("wrote {}", svg.display());
+    }
+    println!();
+    Ok(report)
+}
+
+/// Summary lines of one report: switching default vs the best single
+/// method, and banded vs dense Jacobians where both ran.
+fn ratios(report: &Report) -> Vec<String> {
+    let switching = Method::Switching(SwitchPair::DormandPrinceRadau).name();
+    let mut lines = Vec::new();
+    for (rtol, _) in report.tolerances() {
+        let best = report
+            .winners()
+            .into_iter()
+            .find(|w| w.rtol == rtol)
+            .map_or("-".to_string(), |w| w.label);
+        let (time, rhs, against) = match report.cost_ratio(switching, rtol) {
+            Some(c) => (
+                format!("{:.2}", c.seconds),
+                format!("{:.2}", c.rhs),
+                c.against,
+            ),
+            None => ("-".into(), "-".into(), "-".into()),
+        };
+        let mut banded = Vec::new();
+        for label in [Method::RadauIIA5.name(), switching] {
+            let dense = format!("{label}{DENSE_SUFFIX}");
+            if let (Some(b), Some(d)) = (report.row(label, rtol), report.row(&dense, rtol)) {
+                if b.succeeded() && d.succeeded() {
+                    banded.push(format!(
+                        "{label} banded/dense time {:.2}",
+                        b.seconds / d.seconds
+                    ));
+                }
+            }
+        }
+        lines.push(format!(
+            "| {} | {rtol:.0e} | {time} | {rhs} | {against} | {best} | {} |",
+            report.model(),
+            if banded.is_empty() {
+                "-".into()
+            } else {
+                banded.join("; ")
+            }
+        ));
+    }
+    lines
+}
+
+fn main() {
+    let args: Vec<String> = std::env::args().skip(1).collect();
+    let (names, settings) = match parse(&args) {
+        Ok(p) => p,
+        Err(e) => {
+            eprintln!("error: {e}\n");
+            list();
+            std::process::exit(2);
+        }
+    };
+    if names.is_empty() {
+        list();
+        return;
+    }
+    let cases: Vec<Case> = if names.iter().any(|n| n == "all") {
+        ballast_models::all()
+    } else {
+        let mut v = Vec::new();
+        for n in &names {
+            match ballast_models::get(n) {
+                Some(c) => v.push(c),
+                None => {
+                    eprintln!("error: no model named {n:?}\n");
+                    list();
+                    std::process::exit(2);
+                }
+            }
+        }
+        v
+    };
+    let mut summary = Vec::new();
+    for case in &cases {
+        match study(case, &settings) {
+            Ok(report) => summary.extend(ratios(&report)),
+            Err(e) => {
+                eprintln!("{}: {e}", case.name);
+                std::process::exit(1);
+            }
+        }
+    }
+    println!("summary: switching default vs best single method at the same tolerance");
+    println!("| model | rtol | time ratio | rhs ratio | best single | overall winner | banded vs dense |");
+    println!("| --- | --- | --- | --- | --- | --- | --- |");
+    for line in summary {
+        println!("{line}");
+    }
+}
