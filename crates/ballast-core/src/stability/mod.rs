@@ -171,6 +171,14 @@ pub fn one_step_function(method: Method) -> Option<StabilityFunction> {
         Method::Rk4 => explicit(&ex::RK4),
         Method::BogackiShampine32 => explicit(&ex::BOGACKI_SHAMPINE_32),
         Method::DormandPrince54 => explicit(&ex::DORMAND_PRINCE_54),
+        Method::Tsitouras54 => explicit(&ex::TSITOURAS_54),
+        Method::DormandPrince853 => {
+            use crate::explicit::dop853_tableau as d;
+            Some(StabilityFunction::from_explicit_rows(
+                &d::A[..d::STEP_STAGES],
+                &d::B,
+            ))
+        }
         Method::BackwardEuler => implicit(&im::BACKWARD_EULER),
         Method::Trapezoid => implicit(&im::TRAPEZOID),
         Method::TrBdf2 => implicit(&im::TR_BDF2),

@@ -77,11 +77,12 @@ fn rational_form_agrees_with_linear_solve_for_every_one_step_method() {
             continue;
         };
         let rat = f.rational().unwrap();
+        // Far from 0 the terms of R cancel (|R(-20-7i)| ~ 5e5 for DP853): relative 1e-9.
         for z in [c(-0.5, 0.5), c(-3.0, 1.0), c(-20.0, -7.0), c(1.5, 0.2)] {
             let a = f.eval(z).unwrap().norm();
             let b = rat.modulus(z);
             assert!(
-                (a - b).abs() <= 1e-11 * a.max(1.0),
+                (a - b).abs() <= 1e-9 * a.max(1.0),
                 "{m:?} at {z}: {a} vs {b}"
             );
         }
@@ -294,17 +295,8 @@ fn interpolated_reach_is_close_to_exact() {
 #[test]
 fn every_region_is_computed_and_consistent() {
     for key in RegionKey::all() {
-        let Some(reg) = region(key) else {
-            // Only methods whose tableau is not (yet) in the library may be missing.
-            assert!(
-                matches!(
-                    key,
-                    RegionKey::Method(Method::Tsitouras54 | Method::DormandPrince853)
-                ),
-                "{key:?}"
-            );
-            continue;
-        };
+        // Every method of the library has its region.
+        let reg = region(key).unwrap_or_else(|| panic!("no region for {key:?}"));
         let s = reg.summary();
         // Explicit methods have bounded regions: finite real interval, not A-stable.
         if s.explicit {
