@@ -155,6 +155,7 @@ fn rk_run(a: &[&[f64]], b: &[f64], lambda: Complex64, h: f64, steps: usize) -> f
 /// Every explicit Runge–Kutta method with coefficients in the library:
 /// `(method, rows of a, b)`.
 fn explicit_methods() -> Vec<(Method, &'static [&'static [f64]], &'static [f64])> {
+    use crate::explicit::dop853_tableau as d;
     use crate::explicit::tableau as ex;
     [
         &ex::FORWARD_EULER,
@@ -165,6 +166,10 @@ fn explicit_methods() -> Vec<(Method, &'static [&'static [f64]], &'static [f64])
     ]
     .into_iter()
     .map(|t| (t.method, t.a, t.b))
+    .chain([
+        (Method::Tsitouras54, ex::TSITOURAS_54.a, ex::TSITOURAS_54.b),
+        (Method::DormandPrince853, &d::A[..d::STEP_STAGES], &d::B[..]),
+    ])
     .collect()
 }
 
