@@ -154,7 +154,10 @@ fn rk_run(a: &[&[f64]], b: &[f64], lambda: Complex64, h: f64, steps: usize) -> f
 
 /// Every explicit Runge–Kutta method with coefficients in the library:
 /// `(method, rows of a, b)`.
-fn explicit_methods() -> Vec<(Method, &'static [&'static [f64]], &'static [f64])> {
+/// `(method, rows of a, b)`.
+type ExplicitRk = (Method, &'static [&'static [f64]], &'static [f64]);
+
+fn explicit_methods() -> Vec<ExplicitRk> {
     use crate::explicit::dop853_tableau as d;
     use crate::explicit::tableau as ex;
     [
