@@ -1,8 +1,8 @@
 //! Implicit one-step methods: diagonally and fully implicit Runge–Kutta, Rosenbrock.
 //!
-//! - [`Dirk`]: backward Euler, trapezoid, TR-BDF2, ESDIRK 4(3);
-//! - [`Radau5`]: Radau IIA of order 5 with the real/complex splitting;
-//! - [`Rosenbrock`]: ROS3P.
+//! - [`Dirk`] — backward Euler, trapezoid, TR-BDF2, ESDIRK 4(3);
+//! - [`Radau5`] — Radau IIA of order 5 with the real/complex splitting;
+//! - [`Rosenbrock`] — ROS3P.
 //!
 //! All share the [`iteration::IterationMatrix`] cache (Jacobian reuse,
 //! factorisation reuse) and the Newton control of [`crate::newton`].

@@ -5,7 +5,7 @@ use super::*;
 use crate::norm::{Atol, ErrorNorm};
 use crate::options::ImplicitOptions;
 use crate::problem::Problem;
-use crate::scheme::{Scheme, SchemeState as _};
+use crate::scheme::Scheme;
 use crate::system::{Structure, System};
 
 /// Manufactured solution `y(t) = 2 + sin t` of the nonlinear,
@@ -23,7 +23,9 @@ fn exact(t: f64) -> [f64; 2] {
     [2.0 + t.sin(), t - 1.0 + (-t).exp()]
 }
 
-fn scheme_for(m: crate::method::Method) -> Box<dyn Scheme<fn(f64, &[f64], &mut [f64])>> {
+type Rhs = fn(f64, &[f64], &mut [f64]);
+
+fn scheme_for(m: crate::method::Method) -> Box<dyn Scheme<Rhs>> {
     // A tight Newton tolerance at large fixed steps needs more iterations
     // than the default cap; the order, not Newton's economy, is measured.
     let opts = crate::options::SchemeOptions {
@@ -37,7 +39,7 @@ fn scheme_for(m: crate::method::Method) -> Box<dyn Scheme<fn(f64, &[f64], &mut [
 
 /// Global error at `t = 1` with `steps` equal steps.
 fn global_error(m: crate::method::Method, steps: usize) -> f64 {
-    let f: fn(f64, &[f64], &mut [f64]) = manufactured;
+    let f: Rhs = manufactured;
     let mut p = Problem::new(f, 2);
     let mut s = scheme_for(m);
     let norm = ErrorNorm::new(1e-12, Atol::Scalar(1e-12), 2);
@@ -79,7 +81,7 @@ fn measured_orders_equal_the_published_orders() {
 #[test]
 fn iteration_matrix_is_reused_across_steps() {
     // With a constant step on a smooth problem the factorisation is kept.
-    let f: fn(f64, &[f64], &mut [f64]) = manufactured;
+    let f: Rhs = manufactured;
     let mut p = Problem::new(f, 2);
     let mut s = Dirk::new(
         &tableau::ESDIRK_43,

@@ -91,7 +91,7 @@ pub enum LinearSolver<T: Scalar> {
     /// Banded LU with partial pivoting.
     Banded(band::BandLu<T>),
     /// Sparse LU (faer).
-    Sparse(sparse::SparseLu<T>),
+    Sparse(Box<sparse::SparseLu<T>>),
 }
 
 impl<T: Scalar> LinearSolver<T> {
@@ -111,7 +111,7 @@ impl<T: Scalar> LinearSolver<T> {
                         p.dim()
                     ));
                 }
-                LinearSolver::Sparse(sparse::SparseLu::new(p)?)
+                LinearSolver::Sparse(Box::new(sparse::SparseLu::new(p)?))
             }
         })
     }

@@ -79,7 +79,7 @@ proptest! {
         let b: Vec<f64> = (0..n).map(|i| (i as f64 * 0.37).sin() + 0.1).collect();
         let tol = 1e-9 * (1.0 + shift);
         let mut band = LinearSolver::<f64>::new(n, &Structure::Banded { lower: l, upper: u }).unwrap();
-        let x = match solve_with(&mut band, shift, &jb, &b) { x => x };
+        let x = solve_with(&mut band, shift, &jb, &b);
         let scale = 1.0 + x.iter().fold(0.0f64, |m, v| m.max(v.abs()));
         prop_assert!(residual(shift, &jd, &x, &b) < tol * scale);
         for use_faer in [false, true] {

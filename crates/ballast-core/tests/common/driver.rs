@@ -87,6 +87,7 @@ pub fn run<S: System>(
     Ok((scheme.y().to_vec(), st))
 }
 
+#[allow(dead_code)] // used by the tests, not by the bench
 /// The largest componentwise error relative to `|ref| + atol/rtol`-style
 /// mixed scale: `max_i |y_i - r_i| / (|r_i| + floor)`.
 pub fn mixed_error(y: &[f64], r: &[f64], floor: f64) -> f64 {
