@@ -74,8 +74,8 @@ fn panels() -> Vec<Panel> {
     vec![
         Panel {
             title: "Explicit Runge-Kutta",
-            re: (-5.5, 1.5),
-            im: (-4.5, 4.5),
+            re: (-7.0, 2.0),
+            im: (-6.5, 6.5),
             keys: methods(&[
                 Method::ForwardEuler,
                 Method::Heun,
