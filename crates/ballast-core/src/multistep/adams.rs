@@ -22,17 +22,21 @@
 //! Jacobian's norm along the correction.
 //!
 //! ```
-//! use ballast_core::{multistep::Adams, Atol, ErrorNorm, Problem, Scheme, SchemeState};
-//! // y' = -y from y(0) = 1, fixed steps of 0.01 to t = 1.
+//! use ballast_core::{multistep::Adams, Atol, ErrorNorm, Problem, Scheme};
+//! // y' = -y from y(0) = 1 to t = 1, steps chosen by the scheme's factor.
 //! let mut p = Problem::new(|_t: f64, y: &[f64], dy: &mut [f64]| dy[0] = -y[0], 1);
 //! let norm = ErrorNorm::new(1e-8, Atol::Scalar(1e-10), 1);
-//! let mut adams = Adams::new(1);
+//! let mut adams: Box<dyn Scheme<_>> = Box::new(Adams::new(1));
 //! adams.start(&mut p, 0.0, &[1.0]).unwrap();
-//! for _ in 0..100 {
-//!     adams.attempt(&mut p, 0.01, &norm).unwrap();
-//!     adams.accept(&mut p);
+//! let mut h: f64 = 1e-4;
+//! while adams.t() < 1.0 {
+//!     let h_try = h.min(1.0 - adams.t());
+//!     let a = adams.attempt(&mut p, h_try, &norm).unwrap();
+//!     if a.error <= 1.0 { adams.accept(&mut p) } else { adams.reject() }
+//!     h = h_try * a.factor.unwrap();
 //! }
-//! assert!((adams.y()[0] - (-1.0f64).exp()).abs() < 1e-6);
+//! assert!((adams.y()[0] - (-1.0f64).exp()).abs() < 1e-7);
+//! assert!(adams.order() > 3, "the order has climbed from 1");
 //! ```
 
 use super::coefficients::Family;

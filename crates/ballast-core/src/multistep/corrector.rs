@@ -1,6 +1,6 @@
 //! The BDF corrector: simplified Newton on the BDF equation in Nordsieck
-//! form, with the shared Jacobian evaluator, linear solvers and Newton
-//! convergence control ([`crate::jacobian`], [`crate::linalg`],
+//! form, with the shared iteration-matrix cache (Jacobians, linear
+//! solvers) and Newton convergence control ([`crate::implicit::iteration`],
 //! [`crate::newton`]).
 //!
 //! With the prediction `z^(0)` and `gamma = h / l_1`, the correction
@@ -11,25 +11,25 @@
 //! (`h p'(t_{n+1}) = h f` for the corrected polynomial). Each iteration
 //! solves `(I - gamma~ J) dv = -G` with the factorised iteration matrix
 //! of an earlier `gamma~` and Jacobian (Hairer and Wanner II, IV.8 and
-//! V.5). Reuse policy (common practice): the matrix is refactorised when
-//! `gamma / gamma~` leaves `[1/1.2, 1.2]`; the Jacobian is re-evaluated at
-//! the current state when a Newton iteration fails with an older one,
-//! when the last contraction rate exceeded 0.3, or after 20 accepted
-//! steps.
+//! V.5), kept in the shared [`IterationMatrix`] cache: it is keyed by
+//! `gamma` (so an order change that moves `l_1` refactorises too) and
+//! refactorised when `gamma / gamma~` leaves the band of
+//! `ImplicitOptions::refactor_threshold`. Jacobian policy (common practice
+//! for BDF, lazier than for Radau since a BDF step is cheap): re-evaluate
+//! at the current state when a Newton iteration fails with an older
+//! Jacobian, when the last contraction rate exceeded 0.3, or after 20
+//! accepted steps.
 
 use super::engine::Engine;
-use crate::jacobian::JacobianEval;
-use crate::linalg::LinearSolver;
-use crate::matrix::Jacobian;
+use crate::implicit::iteration::IterationMatrix;
 use crate::newton::{NewtonControl, NewtonStatus};
 use crate::norm::ErrorNorm;
 use crate::options::ImplicitOptions;
 use crate::problem::Problem;
 use crate::scheme::StepFailure;
 use crate::system::{Structure, System};
+use num_complex::Complex64;
 
-/// Refactorise when `gamma` moved by more than this ratio.
-const GAMMA_RATIO: f64 = 1.2;
 /// Re-evaluate the Jacobian after this many accepted steps.
 const MAX_JACOBIAN_AGE: usize = 20;
 /// Re-evaluate the Jacobian after a contraction rate above this.
@@ -38,34 +38,25 @@ const SLOW_RATE: f64 = 0.3;
 /// Newton solver state for a BDF scheme; work arrays allocated once.
 #[derive(Debug)]
 pub(crate) struct Corrector {
-    eval: JacobianEval,
-    jac: Jacobian,
-    lu: LinearSolver<f64>,
+    matrix: IterationMatrix,
     newton: NewtonControl,
     /// No usable Jacobian (start, restart) or one is due.
     need_jacobian: bool,
-    /// The Jacobian was evaluated at the current accepted state.
-    jacobian_fresh: bool,
     age: usize,
-    /// `gamma` of the factorisation (0 when none).
-    lu_gamma: f64,
     y: Vec<f64>,
     f: Vec<f64>,
     delta: Vec<f64>,
 }
 
 impl Corrector {
-    /// A corrector for dimension `n` and the Jacobian `structure`.
+    /// A corrector for dimension `n` and the Jacobian `structure`
+    /// (overridden by `opts.structure`).
     pub fn new(n: usize, structure: &Structure, opts: &ImplicitOptions) -> Result<Self, String> {
         Ok(Self {
-            eval: JacobianEval::new(n, structure, opts.jacobian)?,
-            jac: Jacobian::for_structure(n, structure),
-            lu: LinearSolver::new(n, structure)?,
+            matrix: IterationMatrix::new(n, structure, opts, false)?,
             newton: NewtonControl::new(opts.max_newton_iters),
             need_jacobian: true,
-            jacobian_fresh: false,
             age: 0,
-            lu_gamma: 0.0,
             y: vec![0.0; n],
             f: vec![0.0; n],
             delta: vec![0.0; n],
@@ -74,15 +65,16 @@ impl Corrector {
 
     /// Forgets the Jacobian and the factorisation (new state).
     pub fn reset(&mut self) {
+        self.matrix.restart();
         self.need_jacobian = true;
-        self.jacobian_fresh = false;
-        self.lu_gamma = 0.0;
         self.newton.reset();
     }
 
     /// Notes an accepted step and plans the next Jacobian.
     pub fn accepted(&mut self) {
-        self.jacobian_fresh = false;
+        // Rate 0: the cache only learns that its Jacobian is now from an
+        // earlier point; the refresh decision is ours.
+        self.matrix.after_accept(0.0);
         self.age += 1;
         if self.age >= MAX_JACOBIAN_AGE || self.newton.theta() > SLOW_RATE {
             self.need_jacobian = true;
@@ -99,17 +91,15 @@ impl Corrector {
         f_exact: bool,
     ) -> Result<(), StepFailure> {
         let y = e.hist.col(0);
-        let f0: &[f64] = if f_exact || self.eval.uses_analytic() == Some(true) {
+        let f0: &[f64] = if f_exact || self.matrix.evaluator().uses_analytic() == Some(true) {
             &e.dydt
         } else {
             p.rhs(e.t, y, &mut self.f);
             &self.f
         };
-        self.eval.evaluate(p, e.t, y, f0, &mut self.jac)?;
+        self.matrix.evaluate(p, e.t, y, f0)?;
         self.need_jacobian = false;
-        self.jacobian_fresh = true;
         self.age = 0;
-        self.lu_gamma = 0.0;
         self.newton.reset();
         Ok(())
     }
@@ -131,17 +121,15 @@ impl Corrector {
             if self.need_jacobian {
                 self.evaluate_jacobian(p, e, f_exact)?;
             }
-            let ratio = gamma / self.lu_gamma;
-            if self.lu_gamma == 0.0 || !(1.0 / GAMMA_RATIO..=GAMMA_RATIO).contains(&ratio) {
-                p.counters.factorizations += 1;
-                self.lu.factor(1.0 / gamma, &self.jac)?;
-                self.lu_gamma = gamma;
-            }
-            match self.iterate(p, e, l1, norm) {
+            // The cache is keyed by gamma: shift 1 / gamma.
+            let g =
+                self.matrix
+                    .factor(p, gamma, false, |g| 1.0 / g, |_| Complex64::new(0.0, 0.0))?;
+            match self.iterate(p, e, l1, g, norm) {
                 Ok(()) => return Ok(()),
                 Err(StepFailure::NewtonFailed) => {
                     p.counters.newton_failures += 1;
-                    if self.jacobian_fresh {
+                    if self.matrix.is_fresh() {
                         return Err(StepFailure::NewtonFailed);
                     }
                     self.need_jacobian = true;
@@ -157,9 +145,10 @@ impl Corrector {
         p: &mut Problem<S>,
         e: &mut Engine,
         l1: f64,
+        g: f64,
         norm: &ErrorNorm,
     ) -> Result<(), StepFailure> {
-        let (h, tn, g) = (e.h, e.t + e.h, self.lu_gamma);
+        let (h, tn) = (e.h, e.t + e.h);
         e.corr.fill(0.0);
         self.newton.begin();
         loop {
@@ -175,8 +164,7 @@ impl Corrector {
             if !self.delta.iter().all(|v| v.is_finite()) {
                 return Err(StepFailure::NonFinite);
             }
-            self.lu.solve_in_place(&mut self.delta);
-            p.counters.linear_solves += 1;
+            self.matrix.solve_real(p, &mut self.delta);
             p.counters.newton_iters += 1;
             for i in 0..e.n {
                 e.corr[i] += self.delta[i];

@@ -178,7 +178,12 @@ impl Nordsieck {
         if q >= self.max_order {
             return;
         }
-        for j in 0..=q + 1 {
+        // Column q + 1 is assigned: beyond the order the array holds stale
+        // values from earlier steps at higher orders.
+        for (a, b) in self.z[(q + 1) * n..(q + 2) * n].iter_mut().zip(v) {
+            *a = m[q + 1] * scale * b;
+        }
+        for j in 0..=q {
             let c = m[j] * scale;
             for (a, b) in self.z[j * n..(j + 1) * n].iter_mut().zip(v) {
                 *a += c * b;
@@ -252,6 +257,21 @@ mod tests {
         z.rescale(0.25);
         z.eval(-0.6, &mut b); // same t
         assert!((a[0] - b[0]).abs() < 1e-14);
+    }
+
+    #[test]
+    fn raising_after_lowering_ignores_stale_columns() {
+        // Regression: the columns beyond the order hold old values after
+        // a commit; raising the order must overwrite, not add to, them.
+        let mut z = cubic_history();
+        z.predict();
+        z.commit(); // trial had 4 columns; the old history lands in trial
+        z.lower_order(&[0.0, 2.0, 3.0, 1.0]);
+        z.predict();
+        z.trial_mut(3)[0] = 99.0; // stale value beyond the order
+        z.commit();
+        z.raise_order(&[0.0, 0.0, 0.0, 1.0], 1.0, &[5.0]);
+        assert_eq!(z.col(3)[0], 5.0);
     }
 
     #[test]

@@ -26,9 +26,12 @@
 //!   order 2 on and `10` at order 1 (a one-step formula, stable for any
 //!   ratio; this lets the start-up from a small step grow quickly).
 //!
-//! After a rejection the step shrinks (`eta_q` capped at `0.9`), the order
-//! drops when the lower order allows a larger step, and after three
-//! rejections in a row the history restarts at order 1.
+//! After a rejection the step shrinks (`eta_q` capped at `0.9`) and the
+//! order drops when the lower order allows a larger step. Rejections are
+//! counted until `q + 1` steps in a row succeed: a second one lowers the
+//! order by force (a history spoilt by an unstable mode — a step outside
+//! the stability region, or steps changed too often — does not recover by
+//! shrinking the step alone), a third restarts at order 1.
 
 /// Estimated local errors (weighted RMS) at the neighbouring orders.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -58,8 +61,10 @@ pub struct OrderSelector {
     fixed: Option<usize>,
     /// Accepted steps still to take before a change is considered.
     wait: usize,
-    /// Rejections in a row.
+    /// Rejections since the last `q + 1` successful steps in a row.
     rejections: usize,
+    /// Successful steps in a row.
+    calm: usize,
     /// Smallest gain worth a step increase.
     pub min_gain: f64,
     /// Largest step ratio from order 2 on.
@@ -85,6 +90,7 @@ impl OrderSelector {
             fixed,
             wait: 2,
             rejections: 0,
+            calm: 0,
             min_gain,
             max_growth: 2.0,
         }
@@ -114,6 +120,7 @@ impl OrderSelector {
     pub fn restart(&mut self, q: usize) {
         self.wait = q + 1;
         self.rejections = 0;
+        self.calm = 0;
     }
 
     /// Notes an outside change of the step by the ratio `r` (the
@@ -191,7 +198,8 @@ impl OrderSelector {
 
     /// The decision after a rejected step at order `q`.
     pub fn on_failure(&self, q: usize, e: &Estimates) -> Decision {
-        if self.fixed.is_none() && self.rejections >= 2 && q > 1 {
+        let free = self.fixed.is_none() && q > 1;
+        if free && self.rejections >= 2 {
             return Decision {
                 order: 1,
                 factor: 0.25,
@@ -201,15 +209,13 @@ impl OrderSelector {
             order: q,
             factor: eta(e.current, q, BIAS[1]),
         };
-        if self.fixed.is_none() {
-            if let Some(lo) = e.lower {
-                let f = eta(lo, q - 1, BIAS[0]);
-                if f > best.factor {
-                    best = Decision {
-                        order: q - 1,
-                        factor: f,
-                    };
-                }
+        if free {
+            let f = e.lower.map_or(0.0, |lo| eta(lo, q - 1, BIAS[0]));
+            if f > best.factor || self.rejections >= 1 {
+                best = Decision {
+                    order: q - 1,
+                    factor: f.max(best.factor),
+                };
             }
         }
         let cap = if self.rejections >= 1 { 0.5 } else { 0.9 };
@@ -219,7 +225,10 @@ impl OrderSelector {
 
     /// Records an accepted step that led to `d` from order `q`.
     pub fn accepted(&mut self, q: usize, d: &Decision) {
-        self.rejections = 0;
+        self.calm += 1;
+        if self.calm > q {
+            self.rejections = 0;
+        }
         if d.order != q || d.factor != 1.0 {
             self.wait = d.order + 1;
         } else {
@@ -230,6 +239,7 @@ impl OrderSelector {
     /// Records a rejected step (or a failed attempt) that led to order `q`.
     pub fn rejected(&mut self, q: usize) {
         self.rejections += 1;
+        self.calm = 0;
         self.wait = q + 1;
     }
 }

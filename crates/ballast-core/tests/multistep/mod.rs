@@ -1,0 +1,7 @@
+//! Modules of the `multistep_models` test binary.
+
+mod convergence;
+mod driver;
+mod handover;
+mod models;
+mod stability;
