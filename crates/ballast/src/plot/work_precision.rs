@@ -3,6 +3,7 @@
 //! tolerances, as SVG.
 //!
 //! Points lower and further left are better: less error for less time.
+//! Each line runs from the loosest tolerance to the tightest.
 //! Failed runs have no point; a contender whose runs all failed is listed
 //! in the legend as such.
 //!
@@ -66,7 +67,8 @@ const COLOURS: [RGBColor; 10] = [
     RGBColor(170, 60, 60),
 ];
 
-/// One contender's points `(seconds, error)`, sorted by time.
+/// One contender's points `(seconds, error)`, from the loosest tolerance
+/// to the tightest.
 struct Line {
     label: String,
     points: Vec<(f64, f64)>,
@@ -77,17 +79,20 @@ fn lines(report: &Report) -> Vec<Line> {
         .labels()
         .into_iter()
         .map(|label| {
-            let mut points: Vec<(f64, f64)> = report
+            let mut rows: Vec<_> = report
                 .rows()
                 .iter()
                 .filter(|r| r.label == label && r.succeeded())
+                .collect();
+            rows.sort_by(|a, b| b.rtol.total_cmp(&a.rtol));
+            let points = rows
+                .into_iter()
                 .filter_map(|r| {
                     let e = r.error?;
                     (e.is_finite() && r.seconds > 0.0 && r.seconds.is_finite())
                         .then(|| (r.seconds, e.max(ERROR_FLOOR_SHOWN)))
                 })
                 .collect();
-            points.sort_by(|a, b| a.0.total_cmp(&b.0));
             Line {
                 label: label.to_string(),
                 points,
