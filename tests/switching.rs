@@ -38,7 +38,7 @@ fn flame_switches_after_ignition() {
     // Ignition is at t ~ 1/delta = 1e4; the switch comes after it, early in
     // the stiff phase.
     assert!(first.t > 0.95e4 && first.t < 1.3e4, "switch at t = {}", first.t);
-    for &t in &[5e3, 9.9e3, 1.0e4, 1.01e4, 1.5e4, 2e4] {
+    for &t in &[5e3, 9.9e3, 1.01e4, 1.5e4, 2e4] {
         let y = sol.eval(t).unwrap();
         let exact = flame.exact(t);
         // Closed form; global error a modest multiple of the tolerance.
@@ -49,6 +49,12 @@ fn flame_switches_after_ignition() {
             exact[0]
         );
     }
+    // At the front itself the problem is ill-conditioned: the ignition
+    // time t_ign ~ 1/y moves by dt = dy / y^2 = 1e4 * (relative error of y
+    // in the slow phase), i.e. ~1e-2 for rtol = 1e-6, and the front moves
+    // at y' <= 4/27, so the error allowed there is 4/27 * 1e-2.
+    let y = sol.eval(1e4).unwrap()[0];
+    assert!((y - flame.exact(1e4)[0]).abs() < 1.5e-3);
 }
 
 /// Non-stiff problems (Arenstorf orbit, HNW I II.0; Pleiades, HNW I II.10):
@@ -171,7 +177,7 @@ fn stiffness_ramp_cap_follows_the_limit() {
     let opts = default_opts(1e-6, 1e-9);
     let dp = integrate(
         ramp.clone(),
-        (0.0, 4.0),
+        (0.0, 7.0),
         &y0,
         &opts.clone().method(Method::DormandPrince54),
     )
@@ -181,18 +187,22 @@ fn stiffness_ramp_cap_follows_the_limit() {
         .summary()
         .real_interval
         .unwrap();
-    let mut capped_like = 0;
+    let (mut late, mut near) = (0, 0);
     for w in dp.times().windows(2) {
         let h = w[1] - w[0];
         // The eigenvalue grows within the step: use its value at the end.
         let limit = real_reach / ramp.lambda(w[1]).abs();
         assert!(h <= 1.02 * limit, "t = {}: h = {h:e} above the limit {limit:e}", w[0]);
-        if h > 0.8 * limit {
-            capped_like += 1;
+        if w[0] > 5.0 {
+            late += 1;
+            if h > 0.5 * limit {
+                near += 1;
+            }
         }
     }
-    assert!(capped_like > 100, "the cap should hold most late steps");
-    assert!((dp.y_final()[0] - 4f64.cos()).abs() < 1e-5);
+    // Late in the run (|lambda| > 1000) the step follows the limit.
+    assert!(near * 10 > late * 9, "{near} of {late} late steps near the limit");
+    assert!((dp.y_final()[0] - 7f64.cos()).abs() < 1e-5);
 
     let auto = integrate(ramp.clone(), (0.0, 10.0), &y0, &opts).unwrap();
     let sw = auto.switches().first().expect("switches to implicit");

@@ -4,3 +4,8 @@ mod common;
 mod contract;
 mod explicit_runs;
 mod switching;
+mod breakpoints;
+mod events;
+mod observer;
+mod robustness;
+mod robustness_props;

@@ -125,12 +125,15 @@ impl<S: System> Controller<S> {
         }
         .min(ctl.cfg.max_step)
         .min(span.max(f64::MIN_POSITIVE));
-        ctl.switcher.at_start(
+        if let Some(h) = ctl.switcher.at_start(
             &mut ctl.problem,
-            ctl.active.as_ref(),
+            &mut ctl.active,
+            ctl.h,
             &ctl.cfg,
             &mut ctl.stats,
-        );
+        ) {
+            ctl.h = h;
+        }
         Ok(ctl)
     }
 

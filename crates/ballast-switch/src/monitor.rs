@@ -29,6 +29,13 @@ const ESTIMATE_TOL: f64 = 1e-2;
 /// Rejections in a row that trigger a fresh estimate (the stiffness may have grown).
 const REJECTIONS_TO_ESTIMATE: usize = 2;
 
+/// When the steps stay far inside the stability region (below
+/// `FAR_FRACTION` of the reach), the interval between full estimates
+/// doubles, up to `MAX_INTERVAL_FACTOR` times the configured one: a
+/// non-stiff run then pays almost nothing for being watched.
+const FAR_FRACTION: f64 = 0.05;
+const MAX_INTERVAL_FACTOR: usize = 16;
+
 /// The free stage estimate is looked at every this many accepted steps: it
 /// costs a pass over the stages, small but not nothing on a cheap system.
 const STAGE_CHECK_EVERY: usize = 4;
@@ -51,6 +58,8 @@ pub(crate) struct Monitor {
     steps_since: usize,
     stage_ref: Option<f64>,
     rejections: usize,
+    /// Current multiple of the configured estimate interval.
+    stretch: usize,
     /// Seconds per right-hand-side call, measured during estimates.
     pub(crate) seconds_per_rhs: Option<f64>,
 }
@@ -68,6 +77,7 @@ impl Monitor {
             steps_since: 0,
             stage_ref: None,
             rejections: 0,
+            stretch: 1,
             seconds_per_rhs: None,
         }
     }
@@ -78,7 +88,7 @@ impl Monitor {
 
     /// Whether a full estimate is due after an accepted step of `scheme`.
     pub(crate) fn due(&self, scheme: &dyn SchemeState, th: &SwitchThresholds) -> bool {
-        if self.latest.is_none() || self.steps_since >= th.estimate_interval {
+        if self.latest.is_none() || self.steps_since >= th.estimate_interval * self.stretch {
             return true;
         }
         if self.rejections >= REJECTIONS_TO_ESTIMATE {
@@ -91,6 +101,16 @@ impl Monitor {
             (Some(s), Some(r)) if r > 0.0 => (s - r).abs() > th.stage_change_trigger * r,
             _ => false,
         }
+    }
+
+    /// Adapts the estimate interval to how far inside the region the
+    /// steps are: `fraction = |h| rho / r(theta)`.
+    pub(crate) fn note_margin(&mut self, fraction: f64) {
+        self.stretch = if fraction < FAR_FRACTION {
+            (self.stretch * 2).min(MAX_INTERVAL_FACTOR)
+        } else {
+            1
+        };
     }
 
     pub(crate) fn note_accept(&mut self) {

@@ -38,6 +38,25 @@ const PRIOR_RHS_PER_IMPLICIT_STEP: f64 = 7.0;
 /// implicit scheme's own steps are timed.
 const PRIOR_SECONDS_PER_FLOP: f64 = 1e-9;
 
+/// A run of this many steps held by stability triggers a trial switch even
+/// when the predicted costs do not favour it (the implicit step cannot be
+/// predicted well from explicit steps held at the stability limit); the
+/// implicit scheme's cost is then measured. Each trial that turns out
+/// dearer than the explicit scheme doubles the run needed before the next.
+const PROBE_AFTER_CAPPED_STEPS: usize = 15;
+
+/// The implicit scheme is switched away from when its measured cost per
+/// unit time exceeds the capped explicit scheme's by this factor.
+const COSTLIER_FACTOR: f64 = 1.2;
+
+/// One implicit step in this many is timed (reading the clock costs tens
+/// of nanoseconds, comparable to a whole step of a small implicit system).
+const TIME_EVERY: usize = 8;
+
+/// Implicit steps between two looks at the way back to the explicit scheme
+/// (the estimate that decides it changes only every few steps anyway).
+const RETURN_CHECK_EVERY: usize = 4;
+
 /// A cap below this fraction of the real-axis reach comes from a ray that
 /// only grazes the region (an eigenvalue near the imaginary axis): there
 /// growth is slow and the error estimate governs, so no cap is applied.
@@ -51,6 +70,9 @@ pub enum SwitchReason {
     StabilityBound,
     /// The implicit run's steps fit inside the explicit region with margin.
     NonStiffAgain,
+    /// The implicit scheme's measured cost per unit time exceeded the
+    /// capped explicit scheme's.
+    ExplicitCheaper,
 }
 
 impl std::fmt::Display for SwitchReason {
@@ -58,6 +80,7 @@ impl std::fmt::Display for SwitchReason {
         f.write_str(match self {
             SwitchReason::StabilityBound => "explicit step held by stability; implicit cheaper",
             SwitchReason::NonStiffAgain => "steps fit the explicit region again",
+            SwitchReason::ExplicitCheaper => "implicit steps cost more than capped explicit ones",
         })
     }
 }
@@ -84,6 +107,8 @@ pub struct SwitchRecord {
 struct CostMeter {
     steps: usize,
     rhs: usize,
+    /// Steps whose time was measured (one in `TIME_EVERY`), and their time.
+    timed: usize,
     seconds: f64,
 }
 
@@ -92,7 +117,7 @@ impl CostMeter {
         (self.steps > 0).then(|| self.rhs as f64 / self.steps as f64)
     }
     fn seconds_per_step(&self) -> Option<f64> {
-        (self.steps > 0 && self.seconds > 0.0).then(|| self.seconds / self.steps as f64)
+        (self.timed > 0 && self.seconds > 0.0).then(|| self.seconds / self.timed as f64)
     }
 }
 
@@ -110,6 +135,12 @@ pub(crate) struct Switcher<S: System> {
     since_switch: usize,
     explicit_cost: CostMeter,
     implicit_cost: CostMeter,
+    /// Accuracy step proposed at the last accepted step that the cap did not hold.
+    h_uncapped: f64,
+    /// Implicit step size when the implicit scheme was last left.
+    h_implicit_seen: f64,
+    /// Capped steps in a row before a trial switch.
+    probe_after: usize,
     /// Counter snapshot and clock at the previous accepted step.
     last_rhs: usize,
     clock: Option<Instant>,
@@ -150,9 +181,13 @@ impl<S: System> Switcher<S> {
                 cap: None,
                 capped_run: 0,
                 fitting_run: 0,
-                since_switch: 0,
+                // Hysteresis separates switches; nothing precedes the first.
+                since_switch: usize::MAX / 2,
                 explicit_cost: CostMeter::default(),
                 implicit_cost: CostMeter::default(),
+                h_uncapped: 0.0,
+                h_implicit_seen: 0.0,
+                probe_after: PROBE_AFTER_CAPPED_STEPS,
                 last_rhs: 0,
                 clock: None,
             },
@@ -171,18 +206,31 @@ impl<S: System> Switcher<S> {
     }
 
     /// First estimate before the first step, so that step is capped too.
+    /// A pair whose explicit scheme would be held far below the first step
+    /// `h0` starts on the implicit scheme; the new first step is returned.
     pub(crate) fn at_start(
         &mut self,
         p: &mut Problem<S>,
-        active: &dyn Scheme<S>,
+        active: &mut Box<dyn Scheme<S>>,
+        h0: f64,
         cfg: &ControlConfig,
         stats: &mut ControlStats,
-    ) {
+    ) -> Option<f64> {
         if let Some(m) = self.monitor.as_mut() {
-            m.estimate(p, active, stats);
+            m.estimate(p, active.as_ref(), stats);
         }
-        self.refresh_cap(active, cfg);
+        self.refresh_cap(active.as_ref(), cfg);
         self.last_rhs = p.counters.rhs_evals;
+        let cap = self.cap?;
+        let rho = self.monitor.as_ref()?.latest()?.rho;
+        let explicit_rate = self.explicit_step_seconds() / cap;
+        let implicit_rate = self.implicit_step_seconds() / h0;
+        if self.standby.is_none() || implicit_rate >= explicit_rate {
+            return None;
+        }
+        self.switch(p, active, SwitchReason::StabilityBound, h0, rho, stats)?;
+        self.last_rhs = p.counters.rhs_evals;
+        Some(h0)
     }
 
     /// The stability cap (step magnitude) for the next step of `active`.
@@ -241,27 +289,38 @@ impl<S: System> Switcher<S> {
         };
         meter.steps += 1;
         meter.rhs += rhs_now - self.last_rhs;
-        if active.is_implicit() {
-            if let Some(c) = self.clock {
-                meter.seconds += c.elapsed().as_secs_f64();
-            }
+        if let Some(c) = self.clock.take() {
+            meter.seconds += c.elapsed().as_secs_f64();
+            meter.timed += 1;
         }
         m.note_accept();
         self.since_switch += 1;
         if m.due(active.as_ref(), &cfg.switching) {
             m.estimate(p, active.as_ref(), stats);
             self.refresh_cap(active.as_ref(), cfg);
+            let fraction = match (self.cap, active.is_implicit()) {
+                (Some(c), false) => report.h.abs() * cfg.switching.cap_safety / c,
+                (None, false) => 0.0,
+                // The implicit scheme needs the estimate to decide the way back.
+                (_, true) => 1.0,
+            };
+            if let Some(m) = self.monitor.as_mut() {
+                m.note_margin(fraction);
+            }
         } else if matches!(active.method(), Method::Adams) {
             // The region follows the current order.
             self.refresh_cap(active.as_ref(), cfg);
         }
         let spectrum = self.monitor.as_ref().and_then(|m| m.latest());
-        let next = match (self.standby.is_some(), spectrum) {
+        let look = !active.is_implicit() || self.since_switch % RETURN_CHECK_EVERY == 0;
+        let next = match (self.standby.is_some() && look, spectrum) {
             (true, Some(s)) => self.consider_switch(p, active, report, h_next, s, cfg, stats),
             _ => None,
         };
         self.last_rhs = p.counters.rhs_evals;
-        self.clock = active.is_implicit().then(Instant::now);
+        if active.is_implicit() && self.implicit_cost.steps % TIME_EVERY == 0 {
+            self.clock = Some(Instant::now());
+        }
         next
     }
 
@@ -304,60 +363,72 @@ impl<S: System> Switcher<S> {
             (sb.method(), sb.order())
         };
         if !active.is_implicit() {
-            self.capped_run = if report.capped {
-                self.capped_run + 1
-            } else {
-                0
-            };
+            let held = report.capped
+                || self
+                    .cap
+                    .is_some_and(|c| report.h.abs() >= th.stiff_fraction * c / th.cap_safety);
+            if !held {
+                self.capped_run = 0;
+                self.h_uncapped = h_next;
+                return None;
+            }
+            self.capped_run += 1;
             if self.capped_run < th.capped_steps_to_switch
                 || self.since_switch < th.min_steps_between_switches
             {
                 return None;
             }
-            let h_stab = self.cap?;
-            // Accuracy would allow h_next; the cap holds the scheme at h_stab.
-            let explicit_rate = self.explicit_step_seconds() / h_stab;
-            let implicit_rate = self.implicit_step_seconds() / h_next.max(h_stab);
-            if implicit_rate >= explicit_rate {
+            let h_explicit = report.h.abs();
+            // After a capped step the accuracy controller's proposal says
+            // little (the stiff mode dominates the error estimate): predict
+            // the implicit step from the last uncapped proposal and from
+            // the implicit steps seen before, whichever is larger.
+            let h_pred = h_next.max(self.h_uncapped).max(self.h_implicit_seen);
+            let explicit_rate = self.explicit_step_seconds() / h_explicit;
+            let implicit_rate = self.implicit_step_seconds() / h_pred.max(h_explicit);
+            let probe = self.capped_run >= self.probe_after;
+            if implicit_rate >= explicit_rate && !probe {
                 return None;
             }
             self.switch(
                 p,
                 active,
                 SwitchReason::StabilityBound,
-                h_next,
+                h_pred,
                 s.rho,
                 stats,
             )?;
-            Some(h_next)
+            Some(h_pred)
         } else {
             let region = current_region(standby_method, standby_order.max(1))?;
             let h_now = report.h.abs();
-            let fits = match critical_step(region, s) {
-                None => true,
-                Some(hc) => h_now <= th.return_margin * hc,
+            let hc = critical_step(region, s);
+            let fits = hc.is_none_or(|hc| h_now <= th.return_margin * hc);
+            self.fitting_run = if fits {
+                self.fitting_run + RETURN_CHECK_EVERY
+            } else {
+                0
             };
-            self.fitting_run = if fits { self.fitting_run + 1 } else { 0 };
-            if self.fitting_run < th.fitting_steps_to_return
-                || self.since_switch < th.min_steps_between_switches
-            {
+            if self.since_switch < th.min_steps_between_switches {
                 return None;
             }
-            let hc = critical_step(region, s).map_or(f64::INFINITY, |h| th.cap_safety * h);
-            let h_explicit = h_next.min(hc);
+            let h_explicit = hc.map_or(h_next, |hc| h_next.min(th.cap_safety * hc));
             let explicit_rate = self.explicit_step_seconds() / h_explicit;
-            let implicit_rate = self.implicit_step_seconds() / h_next;
-            if explicit_rate > implicit_rate {
+            let implicit_rate = self.implicit_step_seconds() / h_now.max(h_next);
+            let reason = if self.fitting_run >= th.fitting_steps_to_return
+                && explicit_rate <= implicit_rate
+            {
+                SwitchReason::NonStiffAgain
+            } else if self.implicit_cost.seconds_per_step().is_some()
+                && implicit_rate > COSTLIER_FACTOR * explicit_rate
+            {
+                self.probe_after = self.probe_after.saturating_mul(2);
+                SwitchReason::ExplicitCheaper
+            } else {
                 return None;
-            }
-            self.switch(
-                p,
-                active,
-                SwitchReason::NonStiffAgain,
-                h_explicit,
-                s.rho,
-                stats,
-            )?;
+            };
+            self.h_implicit_seen = h_now;
+            self.switch(p, active, reason, h_explicit, s.rho, stats)?;
             self.refresh_cap(active.as_ref(), cfg);
             Some(h_explicit)
         }
