@@ -41,6 +41,7 @@
 
 use super::coefficients::Family;
 use super::engine::Engine;
+use super::HistoryError;
 use crate::method::Method;
 use crate::norm::ErrorNorm;
 use crate::problem::Problem;
@@ -84,10 +85,9 @@ impl Adams {
     }
 
     /// Starts from an order-`q` Nordsieck history scaled to the step `h`:
-    /// `cols[j*n..(j+1)*n] = h^j y^{(j)}(t) / j!` for `j = 0..=q` (start-up by
-    /// exact derivatives, or a history converted from another scheme).
-    /// One `f` call. Returns an error when `q` is outside `1..=12`, `cols`
-    /// is too short or `f` is not finite.
+    /// `cols[j*n..(j+1)*n] = h^j y^{(j)}(t) / j!` for `j = 0..=q` (a
+    /// start-up by exact derivatives, or the history of another Nordsieck
+    /// scheme, see [`Adams::history`]). One `f` call.
     pub fn start_with_history<S: System>(
         &mut self,
         p: &mut Problem<S>,
@@ -95,18 +95,27 @@ impl Adams {
         q: usize,
         h: f64,
         cols: &[f64],
-    ) -> Result<(), StepFailure> {
+    ) -> Result<(), HistoryError> {
+        self.e.check_history(q, h, cols)?;
         let n = self.e.n;
-        if q == 0 || q > self.e.sel.max_order() || cols.len() < (q + 1) * n {
-            return Err(StepFailure::NonFinite);
-        }
         p.rhs(t, &cols[..n], &mut self.e.dydt);
         if !self.e.dydt.iter().all(|v| v.is_finite()) {
-            return Err(StepFailure::NonFinite);
+            return Err(HistoryError::NonFinite);
         }
         self.e.start_with_history(t, q, h, cols);
+        // An Adams history holds the exact slope: h f(t, y) in column 1.
+        for (z1, f) in self.e.hist.col_mut(1).iter_mut().zip(&self.e.dydt) {
+            *z1 = h * f;
+        }
         self.stiffness = None;
         Ok(())
+    }
+
+    /// The accepted Nordsieck history `(order, step it is scaled to,
+    /// columns)`: what [`Adams::start_with_history`] takes, so a history
+    /// can pass between Adams and BDF without a restart at order 1.
+    pub fn history(&self) -> (usize, f64, &[f64]) {
+        self.e.history()
     }
 }
 

@@ -39,6 +39,7 @@
 use super::coefficients::Family;
 use super::corrector::Corrector;
 use super::engine::Engine;
+use super::HistoryError;
 use crate::build::BuildError;
 use crate::method::Method;
 use crate::norm::ErrorNorm;
@@ -89,9 +90,10 @@ impl Bdf {
         self
     }
 
-    /// Starts from an order-`q` Nordsieck history scaled to the step `h`
-    /// (`cols[j*n..(j+1)*n]` is column `j`; exact scaled derivatives
-    /// `h^j y^{(j)}(t) / j!` give a start-up by exact values). One `f` call.
+    /// Starts from an order-`q` Nordsieck history scaled to the step `h`:
+    /// `cols[j*n..(j+1)*n] = h^j y^{(j)}(t) / j!` for `j = 0..=q` (a
+    /// start-up by exact derivatives, or the history of another Nordsieck
+    /// scheme, see [`Bdf::history`]). One `f` call.
     pub fn start_with_history<S: System>(
         &mut self,
         p: &mut Problem<S>,
@@ -99,19 +101,24 @@ impl Bdf {
         q: usize,
         h: f64,
         cols: &[f64],
-    ) -> Result<(), StepFailure> {
+    ) -> Result<(), HistoryError> {
+        self.e.check_history(q, h, cols)?;
         let n = self.e.n;
-        if q == 0 || q > self.e.sel.max_order() || cols.len() < (q + 1) * n {
-            return Err(StepFailure::NonFinite);
-        }
         p.rhs(t, &cols[..n], &mut self.e.dydt);
         if !self.e.dydt.iter().all(|v| v.is_finite()) {
-            return Err(StepFailure::NonFinite);
+            return Err(HistoryError::NonFinite);
         }
         self.e.start_with_history(t, q, h, cols);
         self.corrector.reset();
         self.dydt_exact = true;
         Ok(())
+    }
+
+    /// The accepted Nordsieck history `(order, step it is scaled to,
+    /// columns)`: what [`Bdf::start_with_history`] takes, so a history
+    /// can pass between Adams and BDF without a restart at order 1.
+    pub fn history(&self) -> (usize, f64, &[f64]) {
+        self.e.history()
     }
 }
 

@@ -5,6 +5,7 @@
 use super::coefficients::{Coefficients, Family};
 use super::nordsieck::Nordsieck;
 use super::order::{Decision, Estimates, OrderSelector};
+use super::HistoryError;
 use crate::norm::ErrorNorm;
 use crate::scheme::Attempt;
 
@@ -81,6 +82,32 @@ impl Engine {
         self.next_order = 1;
         self.sel.restart(1);
         self.on_fail = None;
+    }
+
+    /// Checks an order-`q` history of `cols` scaled to `h` (before `f` is
+    /// evaluated at its first column).
+    pub fn check_history(&self, q: usize, h: f64, cols: &[f64]) -> Result<(), HistoryError> {
+        let max = self.sel.max_order();
+        if q == 0 || q > max {
+            return Err(HistoryError::Order { order: q, max });
+        }
+        let need = (q + 1) * self.n;
+        if cols.len() < need || h == 0.0 || !h.is_finite() {
+            return Err(HistoryError::Shape {
+                need,
+                got: cols.len(),
+            });
+        }
+        if !cols[..need].iter().all(|v| v.is_finite()) {
+            return Err(HistoryError::NonFinite);
+        }
+        Ok(())
+    }
+
+    /// The accepted history: `(order, step it is scaled to, columns)`.
+    pub fn history(&self) -> (usize, f64, &[f64]) {
+        let q = self.hist.order();
+        (q, self.hist.step(), &self.hist.cols()[..(q + 1) * self.n])
     }
 
     /// Restarts from an order-`q` history `cols` scaled to the step `h`

@@ -16,7 +16,8 @@
 //!   the iteration matrix `I - h/l_1 J` changes only with `h` and `q`;
 //! * dense output, hand-over and start-up are the same array: the history
 //!   polynomial is evaluated, or built from `(t, y, f)` at order 1, or from
-//!   exact derivatives at any order.
+//!   exact derivatives at any order, or taken from the other family
+//!   (`Adams::history` / `Bdf::start_with_history` and back).
 //!
 //! The price is that a step change interpolates the history, which is
 //! stable only when changes are bounded and not too frequent; the order
@@ -37,6 +38,31 @@ pub mod nordsieck;
 pub mod order;
 
 pub use adams::Adams;
+
+/// Why a Nordsieck history could not start a scheme.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, thiserror::Error)]
+#[non_exhaustive]
+pub enum HistoryError {
+    /// The order is outside `1..=max`.
+    #[error("history order {order} is outside 1..={max}")]
+    Order {
+        /// The order given.
+        order: usize,
+        /// The scheme's largest order.
+        max: usize,
+    },
+    /// Fewer than `(q + 1) n` values, or a zero or non-finite step.
+    #[error("history needs {need} values scaled to a finite non-zero step, got {got}")]
+    Shape {
+        /// Values needed.
+        need: usize,
+        /// Values given.
+        got: usize,
+    },
+    /// A value of the history or `f` at its first column is not finite.
+    #[error("history or right-hand side not finite")]
+    NonFinite,
+}
 pub use bdf::Bdf;
 pub use coefficients::{Coefficients, Family};
 

@@ -56,6 +56,12 @@ impl Nordsieck {
         self.h
     }
 
+    /// Every column of the accepted history, column `j` at `j*n..(j+1)*n`
+    /// (columns beyond the order hold stale values).
+    pub fn cols(&self) -> &[f64] {
+        &self.z
+    }
+
     /// Column `j` of the accepted history.
     pub fn col(&self, j: usize) -> &[f64] {
         &self.z[j * self.n..(j + 1) * self.n]

@@ -131,3 +131,50 @@ fn dense_output_is_as_accurate_as_the_steps() {
         }
     }
 }
+
+#[test]
+fn a_nordsieck_history_passes_between_adams_and_bdf() {
+    // Kepler e = 0.5 (closed form): Adams to t = 5, then BDF from Adams'
+    // history (truncated to order 5 at most) without a restart at order
+    // 1, then Adams again from BDF's history.
+    let k = Kepler::new(0.5);
+    let rtol = 1e-8;
+    let norm = ErrorNorm::new(rtol, Atol::Scalar(rtol), 4);
+    let mut p = Problem::new(k.clone(), 4);
+    let mut adams = Adams::new(4);
+    let mut bdf = Bdf::new(4, &Structure::Dense, &ImplicitOptions::default()).unwrap();
+    drive(
+        &mut adams,
+        &mut p,
+        (0.0, 5.0),
+        &k.initial_value(),
+        &norm,
+        |_| {},
+    )
+    .unwrap();
+    let (q, h, cols) = adams.history();
+    let qb = q.min(5);
+    bdf.start_with_history(&mut p, adams.t(), qb, h, &cols[..4 * (qb + 1)])
+        .unwrap();
+    assert_eq!(bdf.order(), qb, "no restart at order 1");
+    drive_on(&mut bdf, &mut p, 10.0, &norm, Some(h), |_| {}).unwrap();
+    let (q, h, cols) = bdf.history();
+    let cols = cols.to_vec();
+    adams
+        .start_with_history(&mut p, bdf.t(), q, h, &cols)
+        .unwrap();
+    drive_on(&mut adams, &mut p, 15.0, &norm, Some(h), |_| {}).unwrap();
+    let exact = k.exact(15.0);
+    let err = adams
+        .y()
+        .iter()
+        .zip(&exact)
+        .map(|(a, b)| (a - b).abs())
+        .fold(0.0, f64::max);
+    assert!(err < 1e4 * rtol, "{err}");
+    // Bad input is refused with a clear error, not a panic.
+    assert!(bdf.start_with_history(&mut p, 0.0, 9, h, &cols).is_err());
+    assert!(bdf
+        .start_with_history(&mut p, 0.0, 2, h, &cols[..4])
+        .is_err());
+}
