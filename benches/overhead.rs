@@ -13,6 +13,12 @@
 //! `stability_cap(false)`, so the monitor's cost shows separately. Before
 //! timing, the bench checks that the floor's constants are the library's
 //! and that the floor takes exactly the library's steps.
+//!
+//! Two modes for a shared machine and for profilers, outside criterion:
+//! `OVERHEAD_PAIRED=50 cargo bench --bench overhead` times the variants
+//! side by side in alternating batches and prints median ratios;
+//! `OVERHEAD_PROFILE=floor|off|on OVERHEAD_ITERS=n` runs one variant `n`
+//! times (run the bench binary under `perf record` or callgrind).
 
 use std::hint::black_box;
 use std::time::Duration;
@@ -338,9 +344,67 @@ fn profile(which: &str, iters: usize) {
     println!("{which}: {iters} runs, {accepted} accepted steps");
 }
 
+/// Side-by-side timing for a shared, noisy machine: `rounds` rounds, each
+/// timing a batch of every variant in turn at both tolerances; prints the
+/// median over rounds of each variant's time per run and of the per-round
+/// ratios to the floor (`OVERHEAD_PAIRED=rounds`).
+fn paired(rounds: usize) {
+    const BATCH: usize = 20;
+    let median = |v: &mut Vec<f64>| {
+        v.sort_by(f64::total_cmp);
+        v[v.len() / 2]
+    };
+    for (rtol, atol) in [(1e-6, 1e-9), (1e-10, 1e-12)] {
+        let mut times: [Vec<f64>; 3] = Default::default();
+        let mut ratios: [Vec<f64>; 2] = Default::default();
+        for _ in 0..rounds {
+            let mut round = [0.0; 3];
+            for (v, slot) in round.iter_mut().enumerate() {
+                let start = std::time::Instant::now();
+                for _ in 0..BATCH {
+                    match v {
+                        0 => {
+                            black_box(floor(SPAN.0, SPAN.1, black_box(&Y0), rtol, atol));
+                        }
+                        1 => {
+                            black_box(library(rtol, atol, false));
+                        }
+                        _ => {
+                            black_box(library(rtol, atol, true));
+                        }
+                    }
+                }
+                *slot = start.elapsed().as_secs_f64() / BATCH as f64;
+            }
+            for v in 0..3 {
+                times[v].push(round[v]);
+            }
+            ratios[0].push(round[1] / round[0]);
+            ratios[1].push(round[2] / round[0]);
+        }
+        let [f, off, on] = times.each_mut().map(median);
+        let [r_off, r_on] = ratios.each_mut().map(median);
+        println!(
+            "rtol {rtol:e}: floor {:.1} us, cap off {:.1} us, cap on {:.1} us per run; \
+             median ratios to the floor: cap off {r_off:.3}, cap on {r_on:.3} ({rounds} rounds)",
+            f * 1e6,
+            off * 1e6,
+            on * 1e6
+        );
+    }
+}
+
 criterion_group!(benches, overhead);
 
 fn main() {
+    if let Some(rounds) = std::env::var("OVERHEAD_PAIRED")
+        .ok()
+        .and_then(|v| v.parse().ok())
+    {
+        check_constants();
+        paired(rounds);
+        return;
+    }
     if let Ok(which) = std::env::var("OVERHEAD_PROFILE") {
         let iters = std::env::var("OVERHEAD_ITERS")
             .ok()
