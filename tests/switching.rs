@@ -32,12 +32,19 @@ fn flame_switches_after_ignition() {
     let span = flame.span();
     let y0 = flame.initial_value();
     let sol = integrate(flame.clone(), span, &y0, &default_opts(1e-6, 1e-9)).unwrap();
-    let first = sol.switches().first().expect("a switch to the implicit scheme");
+    let first = sol
+        .switches()
+        .first()
+        .expect("a switch to the implicit scheme");
     assert_eq!(first.from, Method::DormandPrince54);
     assert_eq!(first.to, Method::RadauIIA5);
     // Ignition is at t ~ 1/delta = 1e4; the switch comes after it, early in
     // the stiff phase.
-    assert!(first.t > 0.95e4 && first.t < 1.3e4, "switch at t = {}", first.t);
+    assert!(
+        first.t > 0.95e4 && first.t < 1.3e4,
+        "switch at t = {}",
+        first.t
+    );
     for &t in &[5e3, 9.9e3, 1.01e4, 1.5e4, 2e4] {
         let y = sol.eval(t).unwrap();
         let exact = flame.exact(t);
@@ -74,7 +81,10 @@ fn nonstiff_problems_do_not_switch() {
         .unwrap();
         assert!(auto.switches().is_empty(), "{name}: {:?}", auto.switches());
         let (wa, wd) = (auto.stats().rhs_evals as f64, dp.stats().rhs_evals as f64);
-        assert!(wa <= 1.05 * wd, "{name}: switching {wa} vs DP5(4) {wd} f calls");
+        assert!(
+            wa <= 1.05 * wd,
+            "{name}: switching {wa} vs DP5(4) {wd} f calls"
+        );
         // Both against the published reference (source in the model registry).
         let tol = 1e-7f64.max(10f64.powf(-case.reference.digits));
         assert!(scaled_error(auto.y_final(), &case.reference.y, tol, 1e-6) < 2000.0);
@@ -102,7 +112,10 @@ fn stiff_kinetics_switch_early() {
         assert!(first.t < early, "{name}: first switch at t = {}", first.t);
         let ea = scaled_error(auto.y_final(), &case.reference.y, 1e-6, 1e-10);
         let er = scaled_error(radau.y_final(), &case.reference.y, 1e-6, 1e-10);
-        assert!(ea < 10.0 * er.max(1.0), "{name}: switching error {ea}, Radau {er}");
+        assert!(
+            ea < 10.0 * er.max(1.0),
+            "{name}: switching error {ea}, Radau {er}"
+        );
     }
 }
 
@@ -118,7 +131,11 @@ fn van_der_pol_mu_1000() {
     // The position component is O(2); a loose relative check of the
     // reference (the fast transitions amplify local errors).
     let err = (sol.y_final()[0] - case.reference.y[0]).abs();
-    assert!(err < 1e-3, "y1 error {err:e}; switches {}", sol.switches().len());
+    assert!(
+        err < 1e-3,
+        "y1 error {err:e}; switches {}",
+        sol.switches().len()
+    );
 }
 
 /// A linear system with known eigenvalues (`LinearSpectrum`, exact solution
@@ -139,8 +156,13 @@ fn explicit_steps_stay_inside_the_region_for_true_eigenvalues() {
             .map(|(re, im)| Complex64::new(re, im))
             .collect();
         for method in [Method::DormandPrince54, Method::default()] {
-            let sol = integrate(model.clone(), (0.0, 3.0), &y0, &default_opts(1e-6, 1e-9).method(method))
-                .unwrap();
+            let sol = integrate(
+                model.clone(),
+                (0.0, 3.0),
+                &y0,
+                &default_opts(1e-6, 1e-9).method(method),
+            )
+            .unwrap();
             let exact = model.exact(3.0);
             assert!(scaled_error(sol.y_final(), &exact, 1e-6, 1e-9) < 100.0);
             let first = match method {
@@ -158,7 +180,11 @@ fn explicit_steps_stay_inside_the_region_for_true_eigenvalues() {
                 let h = w[1] - w[0];
                 for &l in &eig {
                     let g = r.eval(l * h).unwrap().norm();
-                    assert!(g <= 1.0 + 1e-9, "{method}: t = {}, h = {h:e}, |R(h lambda)| = {g}", w[0]);
+                    assert!(
+                        g <= 1.0 + 1e-9,
+                        "{method}: t = {}, h = {h:e}, |R(h lambda)| = {g}",
+                        w[0]
+                    );
                 }
             }
             assert!(explicit_steps > 0);
@@ -192,7 +218,11 @@ fn stiffness_ramp_cap_follows_the_limit() {
         let h = w[1] - w[0];
         // The eigenvalue grows within the step: use its value at the end.
         let limit = real_reach / ramp.lambda(w[1]).abs();
-        assert!(h <= 1.02 * limit, "t = {}: h = {h:e} above the limit {limit:e}", w[0]);
+        assert!(
+            h <= 1.02 * limit,
+            "t = {}: h = {h:e} above the limit {limit:e}",
+            w[0]
+        );
         if w[0] > 5.0 {
             late += 1;
             if h > 0.5 * limit {
@@ -201,7 +231,10 @@ fn stiffness_ramp_cap_follows_the_limit() {
         }
     }
     // Late in the run (|lambda| > 1000) the step follows the limit.
-    assert!(near * 10 > late * 9, "{near} of {late} late steps near the limit");
+    assert!(
+        near * 10 > late * 9,
+        "{near} of {late} late steps near the limit"
+    );
     assert!((dp.y_final()[0] - 7f64.cos()).abs() < 1e-5);
 
     let auto = integrate(ramp.clone(), (0.0, 10.0), &y0, &opts).unwrap();
@@ -225,4 +258,20 @@ fn stiffness_ramp_cap_follows_the_limit() {
     );
     assert!((auto.y_final()[0] - 10f64.cos()).abs() < 1e-5);
     let _ = SwitchPair::AdamsBdf;
+}
+
+/// Asking for an analytic Jacobian from a system without one is refused
+/// at the door with a clear error.
+#[test]
+fn analytic_jacobian_requested_but_missing() {
+    let err = integrate(
+        |_t: f64, y: &[f64], dy: &mut [f64]| dy[0] = -y[0],
+        (0.0, 1.0),
+        &[1.0],
+        &Options::default()
+            .method(Method::RadauIIA5)
+            .jacobian(ballast::JacobianSource::Analytic),
+    )
+    .unwrap_err();
+    assert!(err.to_string().contains("analytic Jacobian"), "{err}");
 }

@@ -98,6 +98,12 @@ impl<S: System> Controller<S> {
             .clone()
             .unwrap_or_else(|| system.structure());
         let mut problem = Problem::new(system, n);
+        if cfg.scheme.implicit.jacobian == ballast_core::JacobianSource::Analytic {
+            let mut probe = ballast_core::Jacobian::for_structure(n, &structure);
+            if !problem.system.jacobian(t0, y0, &mut probe) {
+                return Err(SetupError::MissingJacobian);
+            }
+        }
         let (mut active, switcher) = Switcher::new(cfg.method, n, &structure, &cfg)?;
         if cfg.fixed_step.is_none() && !active.has_error_estimate() {
             return Err(SetupError::FixedStepRequired(active.method()));

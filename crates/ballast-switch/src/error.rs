@@ -75,6 +75,9 @@ pub enum SetupError {
         /// Initial time.
         t: f64,
     },
+    /// An analytic Jacobian was asked for, but the system does not provide one.
+    #[error("JacobianSource::Analytic was requested but the system provides no analytic Jacobian")]
+    MissingJacobian,
     /// The method has no error estimate and needs a fixed step.
     #[error("{0} has no error estimate: give a fixed step")]
     FixedStepRequired(ballast_core::Method),
