@@ -44,6 +44,14 @@ pub enum Error {
         /// The offending value.
         value: f64,
     },
+    /// `rtol` is below what double precision can deliver.
+    #[error("rtol {value:e} is below {min:e}: double precision cannot deliver it")]
+    RtolTooSmall {
+        /// The tolerance asked for.
+        value: f64,
+        /// The smallest accepted, [`Options::MIN_RTOL`](crate::Options::MIN_RTOL).
+        min: f64,
+    },
     /// Per-component `atol` of the wrong length.
     #[error("atol has {got} components, the state has {expected}")]
     AtolLength {
@@ -77,6 +85,48 @@ pub enum Error {
     /// Jacobian structure of the wrong size).
     #[error("invalid setup: {0}")]
     InvalidSetup(String),
+    /// The time span's length `t1 - t0` overflows to infinity.
+    #[error("time span ({t0}, {t1}) is too long: t1 - t0 overflows")]
+    SpanTooLong {
+        /// Start.
+        t0: f64,
+        /// End.
+        t1: f64,
+    },
+    /// `min_step` is larger than `max_step` (or the fixed step).
+    #[error("min_step {min_step} exceeds max_step {max_step}")]
+    StepBoundsCrossed {
+        /// The smallest step allowed.
+        min_step: f64,
+        /// The largest step allowed.
+        max_step: f64,
+    },
+    /// `max_steps` is zero.
+    #[error("max_steps must be at least 1")]
+    ZeroMaxSteps,
+    /// A breakpoint is NaN or infinite.
+    #[error("breakpoint {value} is not finite")]
+    NonFiniteBreakpoint {
+        /// The breakpoint.
+        value: f64,
+    },
+    /// An event's time tolerance is negative or not finite.
+    #[error("event {index}: time tolerance must be finite and >= 0, got {value}")]
+    InvalidEventTolerance {
+        /// The event (in the order added).
+        index: usize,
+        /// The tolerance.
+        value: f64,
+    },
+    /// A declared Jacobian structure (sparsity pattern) has another
+    /// dimension than the state.
+    #[error("the Jacobian's declared structure is {jacobian}x{jacobian} but the state has {state} components")]
+    JacobianDimension {
+        /// Components of the state.
+        state: usize,
+        /// Dimension of the declared structure.
+        jacobian: usize,
+    },
     /// The right-hand side is NaN or infinite at the initial state.
     #[error("the right-hand side is NaN or infinite at the initial state (t = {t})")]
     NonFiniteInitialRhs {
@@ -92,6 +142,14 @@ pub enum Error {
         t0: f64,
         /// Span end reached.
         t1: f64,
+    },
+    /// The buffer given to `eval_into` has the wrong length.
+    #[error("output buffer has {got} components, the state has {expected}")]
+    OutputLength {
+        /// State dimension.
+        expected: usize,
+        /// Buffer length.
+        got: usize,
     },
     /// `eval(t)` on a solution that kept no dense output.
     #[error(
@@ -123,14 +181,36 @@ pub enum Error {
         /// The solution up to `t`.
         partial: Box<Solution>,
     },
-    /// The right-hand side kept returning NaN or infinity.
-    #[error("the right-hand side returned NaN or infinity near t = {t}")]
+    /// The right-hand side (or the step built from it) kept producing NaN
+    /// or infinity while the step shrank.
+    #[error("NaN or infinity from the right-hand side near t = {t} (step {h:e})")]
     NonFiniteRhs {
         /// Time reached.
         t: f64,
         /// The last step tried.
         h: f64,
         /// The solution up to `t`.
+        partial: Box<Solution>,
+    },
+    /// The user's analytic Jacobian returned NaN or infinity, and the step
+    /// failed because of it.
+    #[error("the analytic Jacobian returned NaN or infinity near t = {t} (step {h:e})")]
+    NonFiniteJacobian {
+        /// Time reached.
+        t: f64,
+        /// The last step tried.
+        h: f64,
+        /// The solution up to `t`.
+        partial: Box<Solution>,
+    },
+    /// An event function returned NaN or infinity.
+    #[error("event {index} returned NaN or infinity at t = {t}")]
+    NonFiniteEvent {
+        /// The event (in the order added).
+        index: usize,
+        /// Where.
+        t: f64,
+        /// The solution up to the last accepted step before `t`.
         partial: Box<Solution>,
     },
     /// Newton's iteration failed even at the smallest step.
@@ -163,7 +243,9 @@ impl Error {
             | Error::TooManySteps { partial, .. }
             | Error::NonFiniteRhs { partial, .. }
             | Error::NewtonFailed { partial, .. }
-            | Error::SingularMatrix { partial, .. } => Some(partial),
+            | Error::SingularMatrix { partial, .. }
+            | Error::NonFiniteJacobian { partial, .. }
+            | Error::NonFiniteEvent { partial, .. } => Some(partial),
             _ => None,
         }
     }
@@ -175,7 +257,9 @@ impl Error {
             | Error::TooManySteps { partial, .. }
             | Error::NonFiniteRhs { partial, .. }
             | Error::NewtonFailed { partial, .. }
-            | Error::SingularMatrix { partial, .. } => Some(*partial),
+            | Error::SingularMatrix { partial, .. }
+            | Error::NonFiniteJacobian { partial, .. }
+            | Error::NonFiniteEvent { partial, .. } => Some(*partial),
             _ => None,
         }
     }
@@ -185,7 +269,9 @@ impl Error {
         self.partial().is_none()
             && !matches!(
                 self,
-                Error::EvalOutsideSpan { .. } | Error::NoDenseOutput { .. }
+                Error::EvalOutsideSpan { .. }
+                    | Error::NoDenseOutput { .. }
+                    | Error::OutputLength { .. }
             )
     }
 }

@@ -61,7 +61,12 @@ impl Default for Options {
 }
 
 impl Options {
-    /// Relative tolerance (default `1e-6`).
+    /// The smallest relative tolerance a run accepts: 100 ulps of 1. Below
+    /// it rounding errors alone exceed the tolerance and the step size
+    /// would shrink until the step budget runs out.
+    pub const MIN_RTOL: f64 = 100.0 * f64::EPSILON;
+
+    /// Relative tolerance (default `1e-6`; at least [`Options::MIN_RTOL`]).
     pub fn rtol(mut self, rtol: f64) -> Self {
         self.rtol = rtol;
         self

@@ -1,15 +1,24 @@
 //! The driver: checks the input at the door, runs the controller, keeps the
-//! output the options ask for, locates events, calls the observer.
+//! output the options ask for, steps onto breakpoints, locates events,
+//! calls the observer, and turns a failure into an error that keeps the
+//! solution computed so far.
+
+mod guard;
+mod output;
+mod validate;
 
 use std::ops::ControlFlow;
 
-use ballast_core::{Atol, ErrorNorm, Structure, System};
+use ballast_core::{ErrorNorm, System};
 use ballast_switch::{ControlConfig, Controller, RunFailure, SetupError};
 
 use crate::error::Error;
-use crate::events::{Event, EventTracker};
-use crate::options::{Options, Output};
-use crate::solution::{DenseRecord, Solution, Stats};
+use crate::events::{Event, EventTracker, NonFiniteEvent};
+use crate::options::Options;
+use crate::solution::{Solution, Stats};
+use guard::Guarded;
+use output::OutputKeeper;
+use validate::validate;
 
 /// What an observer sees after each accepted step.
 #[derive(Debug)]
@@ -39,7 +48,7 @@ pub enum StopReason {
 
 type Observer<'o> = Box<dyn FnMut(&StepInfo<'_>) -> ControlFlow<()> + 'o>;
 
-/// A run with events or an observer; [`integrate`] is the plain case.
+/// A run with events, an observer or breakpoints; [`integrate`] is the plain case.
 ///
 /// ```
 /// use ballast::{Direction, Event, Options, Run};
@@ -57,7 +66,7 @@ pub struct Run<'o, S: System> {
     span: (f64, f64),
     y0: Vec<f64>,
     opts: Options,
-    events: Vec<Event>,
+    events: Vec<Event<'o>>,
     observer: Option<Observer<'o>>,
 }
 
@@ -75,7 +84,7 @@ impl<'o, S: System> Run<'o, S> {
     }
 
     /// Adds an event function.
-    pub fn event(mut self, event: Event) -> Self {
+    pub fn event(mut self, event: Event<'o>) -> Self {
         self.events.push(event);
         self
     }
@@ -102,13 +111,17 @@ impl<'o, S: System> Run<'o, S> {
             events,
             mut observer,
         } = self;
-        validate(&system, t0, t1, &y0, &opts)?;
+        validate(&system, t0, t1, &y0, &opts, &events)?;
         let n = y0.len();
         let norm = ErrorNorm::new(opts.rtol, opts.atol.clone(), n);
         let cfg = ControlConfig {
             method: opts.method,
             scheme: ballast_core::SchemeOptions {
                 implicit: opts.implicit.clone(),
+                // Only final-state output without events can do without the
+                // schemes' own continuous extensions.
+                dense_output: !(matches!(opts.output, crate::options::Output::Final)
+                    && events.is_empty()),
             },
             fixed_step: opts.fixed_step,
             first_step: opts.first_step,
@@ -118,15 +131,14 @@ impl<'o, S: System> Run<'o, S> {
             stability_cap: opts.stability_cap,
             switching: opts.switching.clone(),
         };
-        let mut ctl = Controller::new(system, t0, &y0, t1, norm, cfg).map_err(|e| match e {
-            SetupError::NonFiniteInitialRhs { t } => Error::NonFiniteInitialRhs { t },
-            SetupError::FixedStepRequired(m) => Error::FixedStepRequired(m),
-            other => Error::InvalidSetup(other.to_string()),
-        })?;
+        let mut ctl =
+            Controller::new(Guarded::new(system), t0, &y0, t1, norm, cfg).map_err(|e| match e {
+                SetupError::NonFiniteInitialRhs { t } => Error::NonFiniteInitialRhs { t },
+                SetupError::FixedStepRequired(m) => Error::FixedStepRequired(m),
+                other => Error::InvalidSetup(other.to_string()),
+            })?;
 
         let mut out = OutputKeeper::new(&opts, n, t0, t1, &y0);
-        let mut tracker = EventTracker::new(events, n);
-        tracker.start(t0, &y0);
         let mut sol = Solution {
             n,
             method: opts.method,
@@ -141,44 +153,61 @@ impl<'o, S: System> Run<'o, S> {
             switches: Vec::new(),
             events: Vec::new(),
         };
-        let mut breakpoints = sorted_breakpoints(&opts.breakpoints, t0, t1);
+        let mut tracker = EventTracker::new(events, n);
+        if let Err(e) = tracker.start(t0, &y0) {
+            finish(&mut sol, &ctl, &mut out);
+            return Err(event_error(e, sol));
+        }
+        let mut breakpoints = Breakpoints::new(&opts.breakpoints, t0, t1);
         let mut reason = StopReason::ReachedEnd;
         loop {
-            let limit = breakpoints.first().copied().unwrap_or(t1);
+            // A breakpoint b is approached to the last float before it, and
+            // the scheme restarts at the first float after it: no stage of
+            // either neighbouring step evaluates f at b itself, so a forcing
+            // that jumps at b is seen from the correct side whichever side
+            // it assigns to b. The state moves by ~ulp(b) |f| in between,
+            // far below any tolerance; the output reports the time b.
+            let (limit, goal) = match breakpoints.next() {
+                Some(b) => (breakpoints.before(b), b),
+                None => (t1, t1),
+            };
+            ctl.system_mut().clear();
             let report = match ctl.step(limit) {
                 Ok(r) => r,
                 Err(failure) => {
+                    let failure = diagnose(failure, &ctl);
                     finish(&mut sol, &ctl, &mut out);
                     return Err(run_error(failure, sol));
                 }
             };
             let scheme = ctl.scheme();
-            let mut t_end = report.t;
-            if report.reached_limit {
-                t_end = limit;
-            }
+            let mut t_end = if report.reached_limit { goal } else { report.t };
             let mut stop = false;
             if !tracker.is_empty() {
-                let before = sol.events.len();
-                if let Some(te) = tracker.scan(
+                let found = tracker.scan(
                     report.t_prev,
                     t_end,
                     scheme.y(),
                     |t, o| scheme.interpolate(t, o),
                     &mut sol.events,
-                ) {
-                    t_end = te;
-                    stop = true;
-                    reason = StopReason::TerminalEvent(sol.events[sol.events.len() - 1].index);
+                );
+                match found {
+                    Ok(Some(te)) => {
+                        t_end = te;
+                        stop = true;
+                        reason = StopReason::TerminalEvent(sol.events[sol.events.len() - 1].index);
+                    }
+                    Ok(None) => {}
+                    Err(e) => {
+                        finish(&mut sol, &ctl, &mut out);
+                        return Err(event_error(e, sol));
+                    }
                 }
-                let _ = before;
             }
-            let y_end: Vec<f64>;
+            let y_event: Vec<f64>;
             let y_now: &[f64] = if stop {
-                let mut y = vec![0.0; n];
-                scheme.interpolate(t_end, &mut y);
-                y_end = y;
-                &y_end
+                y_event = sol.events[sol.events.len() - 1].y.clone();
+                &y_event
             } else {
                 scheme.y()
             };
@@ -198,16 +227,14 @@ impl<'o, S: System> Run<'o, S> {
                     reason = StopReason::ObserverStopped;
                 }
             }
-            if stop {
+            if stop || (report.reached_limit && goal == t1) {
                 break;
             }
             if report.reached_limit {
-                if limit == t1 {
-                    break;
-                }
-                breakpoints.remove(0);
+                let restart_at = breakpoints.after(goal);
+                breakpoints.pop();
                 let y_here = ctl.y().to_vec();
-                if let Err(failure) = ctl.restart(limit, &y_here) {
+                if let Err(failure) = ctl.restart(restart_at, &y_here) {
                     finish(&mut sol, &ctl, &mut out);
                     return Err(run_error(failure, sol));
                 }
@@ -241,6 +268,67 @@ pub fn integrate<S: System>(
     Run::new(system, t_span, y0, opts).solve()
 }
 
+/// The breakpoints strictly inside the span, in the direction of
+/// integration, each at least two floats past the previous one (closer
+/// ones could not be stepped between).
+struct Breakpoints {
+    /// In reverse order of integration, so the next one is at the end.
+    pending: Vec<f64>,
+    /// `+1` forwards, `-1` backwards.
+    dir: f64,
+}
+
+impl Breakpoints {
+    fn new(points: &[f64], t0: f64, t1: f64) -> Self {
+        let dir = if t1 > t0 { 1.0 } else { -1.0 };
+        let mut v: Vec<f64> = points.to_vec();
+        v.sort_by(|a, b| (dir * a).total_cmp(&(dir * b)));
+        let mut kept: Vec<f64> = Vec::with_capacity(v.len());
+        let mut last = t0;
+        for b in v {
+            let (before, after) = (next_float(b, -dir), next_float(b, dir));
+            if dir * (before - last) > 0.0 && dir * (t1 - after) > 0.0 {
+                kept.push(b);
+                last = after;
+            }
+        }
+        kept.reverse();
+        Self { pending: kept, dir }
+    }
+
+    fn next(&self) -> Option<f64> {
+        self.pending.last().copied()
+    }
+
+    fn pop(&mut self) {
+        self.pending.pop();
+    }
+
+    /// The float next to `b` towards the start of the span.
+    fn before(&self, b: f64) -> f64 {
+        next_float(b, -self.dir)
+    }
+
+    /// The float next to `b` towards the end of the span.
+    fn after(&self, b: f64) -> f64 {
+        next_float(b, self.dir)
+    }
+}
+
+/// The neighbour of the finite `x` in direction `dir` (`+1` up, `-1` down).
+fn next_float(x: f64, dir: f64) -> f64 {
+    if x == 0.0 {
+        return dir * f64::from_bits(1);
+    }
+    let bits = x.to_bits();
+    // Away from zero increases the magnitude bits.
+    if (x > 0.0) == (dir > 0.0) {
+        f64::from_bits(bits + 1)
+    } else {
+        f64::from_bits(bits - 1)
+    }
+}
+
 fn gather_stats<S: System>(ctl: &Controller<S>) -> Stats {
     let w = ctl.counters();
     let c = ctl.stats();
@@ -268,261 +356,99 @@ fn finish<S: System>(sol: &mut Solution, ctl: &Controller<S>, out: &mut OutputKe
     out.finish(sol);
 }
 
-fn run_error(failure: RunFailure, sol: Solution) -> Error {
-    let partial = Box::new(sol);
+/// A failure as the facade reports it: the controller's, or the user's
+/// Jacobian named as the culprit.
+enum Failure {
+    Run(RunFailure),
+    NonFiniteJacobian { t: f64, h: f64 },
+}
+
+impl From<RunFailure> for Failure {
+    fn from(f: RunFailure) -> Self {
+        Failure::Run(f)
+    }
+}
+
+/// Names the cause the controller could only see the symptom of: an
+/// analytic Jacobian with NaN or infinity in it (the LU fails or Newton
+/// diverges), or a right-hand side that returned NaN or infinity during the
+/// failed step while the step size shrank to nothing.
+fn diagnose<S: System>(failure: RunFailure, ctl: &Controller<Guarded<S>>) -> Failure {
+    let g = ctl.system();
+    let implicit = !ctl.active_method().is_explicit();
     match failure {
-        RunFailure::StepSizeTooSmall { t, h } => Error::StepSizeTooSmall { t, h, partial },
-        RunFailure::TooManySteps { t, max } => Error::TooManySteps { t, max, partial },
-        RunFailure::NonFiniteRhs { t, h } => Error::NonFiniteRhs { t, h, partial },
-        RunFailure::NewtonFailed { t, h } => Error::NewtonFailed { t, h, partial },
-        RunFailure::SingularMatrix { t, h } => Error::SingularMatrix { t, h, partial },
-        other => Error::InvalidSetup(other.to_string()),
+        RunFailure::NonFiniteRhs { t, h }
+        | RunFailure::NewtonFailed { t, h }
+        | RunFailure::SingularMatrix { t, h }
+        | RunFailure::StepSizeTooSmall { t, h }
+            if implicit && g.jac_bad =>
+        {
+            Failure::NonFiniteJacobian { t, h }
+        }
+        RunFailure::StepSizeTooSmall { t, h } if g.rhs_bad => {
+            Failure::Run(RunFailure::NonFiniteRhs { t, h })
+        }
+        other => Failure::Run(other),
     }
 }
 
-fn sorted_breakpoints(points: &[f64], t0: f64, t1: f64) -> Vec<f64> {
-    let forward = t1 > t0;
-    let mut v: Vec<f64> = points
-        .iter()
-        .copied()
-        .filter(|&b| {
-            if forward {
-                b > t0 && b < t1
-            } else {
-                b < t0 && b > t1
-            }
-        })
-        .collect();
-    v.sort_by(|a, b| {
-        if forward {
-            a.total_cmp(b)
-        } else {
-            b.total_cmp(a)
-        }
-    });
-    v.dedup();
-    v
-}
-
-/// Keeps the states the output mode asks for.
-struct OutputKeeper {
-    mode: Output,
-    n: usize,
-    t: Vec<f64>,
-    y: Vec<f64>,
-    dense: Option<DenseRecord>,
-    /// Requested times in the direction of integration, and the next one due.
-    at: Vec<f64>,
-    next_at: usize,
-    buf: Vec<f64>,
-}
-
-impl OutputKeeper {
-    fn new(opts: &Options, n: usize, t0: f64, t1: f64, y0: &[f64]) -> Self {
-        let mut k = Self {
-            mode: opts.output.clone(),
-            n,
-            t: Vec::new(),
-            y: Vec::new(),
-            dense: None,
-            at: Vec::new(),
-            next_at: 0,
-            buf: vec![0.0; n],
-        };
-        match &opts.output {
-            Output::Steps => {
-                k.t.push(t0);
-                k.y.extend_from_slice(y0);
-                k.dense = Some(DenseRecord::default());
-            }
-            Output::At(times) => {
-                k.at = times.clone();
-                // Validation guarantees the times lie in the span; order them
-                // along the direction of integration.
-                k.at.sort_by(|a, b| a.total_cmp(b));
-                if t1 < t0 {
-                    k.at.reverse();
-                }
-                while k.next_at < k.at.len() && k.at[k.next_at] == t0 {
-                    k.t.push(t0);
-                    k.y.extend_from_slice(y0);
-                    k.next_at += 1;
-                }
-            }
-            Output::Final => {}
-        }
-        k
-    }
-
-    fn mode_name(&self) -> &'static str {
-        match self.mode {
-            Output::Steps => "steps",
-            Output::At(_) => "at requested times",
-            Output::Final => "final state only",
-        }
-    }
-
-    fn record(&mut self, t_prev: f64, t: f64, y: &[f64], scheme: &dyn ballast_core::SchemeState) {
-        match self.mode {
-            Output::Steps => {
-                self.t.push(t);
-                self.y.extend_from_slice(y);
-                if let Some(d) = self.dense.as_mut() {
-                    let deg = scheme.dense_degree();
-                    let slot = d.push(t_prev, scheme.t(), deg, self.n);
-                    scheme.dense_coefficients(slot);
-                }
-            }
-            Output::At(_) => {
-                let forward = t >= t_prev;
-                while self.next_at < self.at.len() {
-                    let ta = self.at[self.next_at];
-                    let due = if forward { ta <= t } else { ta >= t };
-                    if !due {
-                        break;
-                    }
-                    if ta == t {
-                        self.buf.copy_from_slice(y);
-                    } else {
-                        scheme.interpolate(ta, &mut self.buf);
-                    }
-                    self.t.push(ta);
-                    self.y.extend_from_slice(&self.buf);
-                    self.next_at += 1;
-                }
-            }
-            Output::Final => {}
-        }
-    }
-
-    fn finish(&mut self, sol: &mut Solution) {
-        sol.t = std::mem::take(&mut self.t);
-        sol.y = std::mem::take(&mut self.y);
-        sol.dense = self.dense.take();
-        if matches!(self.mode, Output::Final) {
-            sol.t.push(sol.t_final);
-            sol.y.extend_from_slice(&sol.y_final);
-        }
+fn run_error(failure: impl Into<Failure>, sol: Solution) -> Error {
+    let partial = Box::new(sol);
+    match failure.into() {
+        Failure::NonFiniteJacobian { t, h } => Error::NonFiniteJacobian { t, h, partial },
+        Failure::Run(f) => match f {
+            RunFailure::StepSizeTooSmall { t, h } => Error::StepSizeTooSmall { t, h, partial },
+            RunFailure::TooManySteps { t, max } => Error::TooManySteps { t, max, partial },
+            RunFailure::NonFiniteRhs { t, h } => Error::NonFiniteRhs { t, h, partial },
+            RunFailure::NewtonFailed { t, h } => Error::NewtonFailed { t, h, partial },
+            RunFailure::SingularMatrix { t, h } => Error::SingularMatrix { t, h, partial },
+            other => Error::InvalidSetup(other.to_string()),
+        },
     }
 }
 
-fn positive(name: &'static str, value: f64) -> Result<(), Error> {
-    if value > 0.0 && value.is_finite() {
-        Ok(())
-    } else {
-        Err(Error::InvalidStep { name, value })
+fn event_error(e: NonFiniteEvent, sol: Solution) -> Error {
+    Error::NonFiniteEvent {
+        index: e.index,
+        t: e.t,
+        partial: Box::new(sol),
     }
 }
 
-/// Checks every input before any work (rand's rule: the constructor rejects,
-/// sampling cannot fail).
-fn validate<S: System>(
-    system: &S,
-    t0: f64,
-    t1: f64,
-    y0: &[f64],
-    opts: &Options,
-) -> Result<(), Error> {
-    if !t0.is_finite() || !t1.is_finite() {
-        return Err(Error::NonFiniteSpan { t0, t1 });
-    }
-    if t0 == t1 {
-        return Err(Error::EmptySpan { t0 });
-    }
-    let n = y0.len();
-    if n == 0 {
-        return Err(Error::EmptyState);
-    }
-    if let Some((index, &value)) = y0.iter().enumerate().find(|(_, v)| !v.is_finite()) {
-        return Err(Error::NonFiniteInitialState { index, value });
-    }
-    if !(opts.rtol > 0.0 && opts.rtol.is_finite()) {
-        return Err(Error::InvalidTolerance {
-            name: "rtol".into(),
-            value: opts.rtol,
-        });
-    }
-    match &opts.atol {
-        Atol::Scalar(a) => {
-            if !(*a > 0.0 && a.is_finite()) {
-                return Err(Error::InvalidTolerance {
-                    name: "atol".into(),
-                    value: *a,
-                });
-            }
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn float_neighbours() {
+        for x in [1.0, -1.0, 1e-300, -3.5e7, f64::MIN_POSITIVE] {
+            assert!(next_float(x, 1.0) > x && next_float(x, -1.0) < x);
+            assert_eq!(next_float(next_float(x, 1.0), -1.0), x);
         }
-        Atol::Vector(v) => {
-            if v.len() != n {
-                return Err(Error::AtolLength {
-                    expected: n,
-                    got: v.len(),
-                });
-            }
-            if let Some((i, &a)) = v
-                .iter()
-                .enumerate()
-                .find(|(_, a)| !(**a > 0.0 && a.is_finite()))
-            {
-                return Err(Error::InvalidTolerance {
-                    name: format!("atol[{i}]"),
-                    value: a,
-                });
-            }
+        assert_eq!(next_float(0.0, 1.0), f64::from_bits(1));
+        assert_eq!(next_float(0.0, -1.0), -f64::from_bits(1));
+    }
+
+    #[test]
+    fn breakpoints_keep_only_those_one_can_step_between() {
+        let b = Breakpoints::new(
+            &[3.0, 0.5, 2.0, 2.0, next_float(2.0, 1.0), 0.0, 9.0],
+            0.0,
+            3.0,
+        );
+        // 0 and 3 are the span's ends, 9 lies outside, the duplicate and
+        // the neighbouring float of 2 cannot be stepped between.
+        let mut order = Vec::new();
+        let mut b = b;
+        while let Some(x) = b.next() {
+            order.push(x);
+            b.pop();
         }
+        assert_eq!(order, vec![0.5, 2.0]);
+        let mut back = Breakpoints::new(&[0.5, 2.0], 3.0, 0.0);
+        assert_eq!(back.next(), Some(2.0));
+        assert!(back.before(2.0) > 2.0 && back.after(2.0) < 2.0);
+        back.pop();
+        assert_eq!(back.next(), Some(0.5));
     }
-    if let Some(h) = opts.fixed_step {
-        positive("fixed_step", h)?;
-    }
-    if let Some(h) = opts.first_step {
-        positive("first_step", h)?;
-    }
-    if let Some(h) = opts.max_step {
-        positive("max_step", h)?;
-    }
-    if !(opts.min_step >= 0.0 && opts.min_step.is_finite()) {
-        return Err(Error::InvalidStep {
-            name: "min_step",
-            value: opts.min_step,
-        });
-    }
-    if opts.max_steps == 0 {
-        return Err(Error::InvalidSetup("max_steps must be at least 1".into()));
-    }
-    if opts.method.needs_fixed_step() && opts.fixed_step.is_none() {
-        return Err(Error::FixedStepRequired(opts.method));
-    }
-    let (lo, hi) = if t0 < t1 { (t0, t1) } else { (t1, t0) };
-    if let Output::At(times) = &opts.output {
-        if let Some(&t) = times.iter().find(|&&t| !(t >= lo && t <= hi)) {
-            return Err(Error::OutputTimeOutsideSpan { t, t0, t1 });
-        }
-    }
-    if let Some(&b) = opts.breakpoints.iter().find(|b| !b.is_finite()) {
-        return Err(Error::InvalidSetup(format!("breakpoint {b} is not finite")));
-    }
-    let structure = opts
-        .implicit
-        .structure
-        .clone()
-        .unwrap_or_else(|| system.structure());
-    match &structure {
-        Structure::Dense => {}
-        Structure::Banded { lower, upper } => {
-            if *lower >= n.max(1) && *upper >= n.max(1) {
-                return Err(Error::InvalidSetup(format!(
-                    "band widths ({lower}, {upper}) exceed the dimension {n}"
-                )));
-            }
-        }
-        Structure::Sparse(p) => {
-            if p.dim() != n {
-                return Err(Error::InvalidSetup(format!(
-                    "the Jacobian's sparsity pattern is {}x{} but the state has {n} components",
-                    p.dim(),
-                    p.dim()
-                )));
-            }
-        }
-    }
-    Ok(())
 }

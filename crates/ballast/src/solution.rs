@@ -181,7 +181,8 @@ impl Solution {
         Ok(out)
     }
 
-    /// Like [`eval`](Solution::eval), writing into `out` (length `dim()`).
+    /// Like [`eval`](Solution::eval), writing into `out` (length `dim()`,
+    /// else [`Error::OutputLength`]).
     pub fn eval_into(&self, t: f64, out: &mut [f64]) -> Result<(), Error> {
         let forward = self.t_final >= self.t0;
         let (lo, hi) = if forward {
@@ -189,7 +190,13 @@ impl Solution {
         } else {
             (self.t_final, self.t0)
         };
-        if !(t >= lo && t <= hi) || out.len() != self.n {
+        if out.len() != self.n {
+            return Err(Error::OutputLength {
+                expected: self.n,
+                got: out.len(),
+            });
+        }
+        if !(t >= lo && t <= hi) {
             return Err(Error::EvalOutsideSpan {
                 t,
                 t0: self.t0,
