@@ -59,14 +59,22 @@ fn main() -> Result<(), ballast::Error> {
     let sol = integrate(reactor, span, &y0, &opts)?;
     let auto_time = clock.elapsed().as_secs_f64();
     let y = sol.y_final();
-    println!("Result at t = {}: c = {:.6e}, T = {:.6}", sol.t_final(), y[0], y[1]);
+    println!(
+        "Result at t = {}: c = {:.6e}, T = {:.6}",
+        sol.t_final(),
+        y[0],
+        y[1]
+    );
     println!(
         "  stiffness at the end: rate k(T) = e^T = {:.3e} (time scale {:.1e})",
         y[1].exp(),
         1.0 / y[1].exp()
     );
     let mid = sol.eval(5.0)?;
-    println!("  dense output at t = 5: c = {:.6}, T = {:.6}\n", mid[0], mid[1]);
+    println!(
+        "  dense output at t = 5: c = {:.6}, T = {:.6}\n",
+        mid[0], mid[1]
+    );
 
     println!("Decisions of the default (switching) method:");
     if sol.switches().is_empty() {
@@ -97,19 +105,28 @@ fn main() -> Result<(), ballast::Error> {
 
     let clock = Instant::now();
     let mut shown = 0usize;
-    let explicit = Run::new(reactor, span, &y0, &opts.clone().method(Method::DormandPrince54))
-        .observer(|info| {
-            let done = ((info.t - span.0) / (span.1 - span.0) * 40.0) as usize;
-            if done > shown {
-                shown = done;
-                eprint!("\r  [{:<40}] t = {:>5.1}", "#".repeat(done), info.t);
-                let _ = std::io::stderr().flush();
-            }
-            ControlFlow::Continue(())
-        })
-        .solve()?;
+    let explicit = Run::new(
+        reactor,
+        span,
+        &y0,
+        &opts.clone().method(Method::DormandPrince54),
+    )
+    .observer(|info| {
+        let done = ((info.t - span.0) / (span.1 - span.0) * 40.0) as usize;
+        if done > shown {
+            shown = done;
+            eprint!("\r  [{:<40}] t = {:>5.1}", "#".repeat(done), info.t);
+            let _ = std::io::stderr().flush();
+        }
+        ControlFlow::Continue(())
+    })
+    .solve()?;
     eprintln!();
-    summary("Dormand-Prince 5(4) only", &explicit, clock.elapsed().as_secs_f64());
+    summary(
+        "Dormand-Prince 5(4) only",
+        &explicit,
+        clock.elapsed().as_secs_f64(),
+    );
 
     let diff = (explicit.y_final()[1] - y[1]).abs();
     println!("\nAll three agree on T(60) to {diff:.1e}.");

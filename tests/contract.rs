@@ -53,7 +53,9 @@ fn design_contract_snippet() -> Result<(), ballast::Error> {
         &Options::default().method(Method::DormandPrince54),
     )
     .unwrap_err();
-    let partial = err.partial().expect("a run failure carries the partial solution");
+    let partial = err
+        .partial()
+        .expect("a run failure carries the partial solution");
     // Closed form y = 1/(1 - t) blows up at t = 1 (the numerical solution,
     // lagging the exact one, may pass t = 1 by a hair before the step fails).
     assert!(partial.t_final() > 0.99 && partial.t_final() < 1.001);

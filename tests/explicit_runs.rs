@@ -87,7 +87,13 @@ fn output_modes_agree() {
         .method(Method::DormandPrince54);
     let steps = integrate(f, (0.0, 4.0), &[1.0], &base).unwrap();
     let times = vec![0.0, 0.5, 1.0, 2.5, 4.0];
-    let at = integrate(f, (0.0, 4.0), &[1.0], &base.clone().output_at(times.clone())).unwrap();
+    let at = integrate(
+        f,
+        (0.0, 4.0),
+        &[1.0],
+        &base.clone().output_at(times.clone()),
+    )
+    .unwrap();
     let fin = integrate(f, (0.0, 4.0), &[1.0], &base.clone().output(Output::Final)).unwrap();
     assert_eq!(at.times(), &times[..]);
     assert_eq!(fin.len(), 1);
@@ -109,7 +115,10 @@ fn fixed_step_method_needs_a_step() {
         &Options::default().method(Method::Rk4),
     )
     .unwrap_err();
-    assert!(matches!(err, ballast::Error::FixedStepRequired(Method::Rk4)));
+    assert!(matches!(
+        err,
+        ballast::Error::FixedStepRequired(Method::Rk4)
+    ));
     let ok = integrate(
         |_t: f64, y: &[f64], dy: &mut [f64]| dy[0] = -y[0],
         (0.0, 1.0),
@@ -195,7 +204,13 @@ fn arenstorf_returns_after_one_period() {
             .zip(&case.y0)
             .map(|(a, b)| (a - b).abs())
             .fold(0.0, f64::max);
-        eprintln!("Arenstorf return error with {method} at tol {tol:e}: {err:.3e} ({} steps)", sol.stats().accepted);
-        assert!(err < allowance * tol, "{method} at {tol:e}: return error {err:e}");
+        eprintln!(
+            "Arenstorf return error with {method} at tol {tol:e}: {err:.3e} ({} steps)",
+            sol.stats().accepted
+        );
+        assert!(
+            err < allowance * tol,
+            "{method} at {tol:e}: return error {err:e}"
+        );
     }
 }

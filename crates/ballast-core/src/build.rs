@@ -27,7 +27,6 @@ pub fn build<S: System>(
     structure: &Structure,
     opts: &SchemeOptions,
 ) -> Result<Box<dyn Scheme<S>>, BuildError> {
-    let _ = (structure, opts);
     let rk = |t: &'static tableau::Tableau| -> Result<Box<dyn Scheme<S>>, BuildError> {
         Ok(Box::new(ExplicitRk::new(t, n)))
     };
@@ -45,7 +44,9 @@ pub fn build<S: System>(
         Method::BogackiShampine32 => rk(&tableau::BOGACKI_SHAMPINE_32),
         Method::DormandPrince54 => rk(&tableau::DORMAND_PRINCE_54),
         Method::Tsitouras54 => rk(&tableau::TSITOURAS_54),
-        Method::DormandPrince853 => Ok(Box::new(Dop853::new(n))),
+        Method::DormandPrince853 => Ok(Box::new(
+            Dop853::new(n).with_dense_output(opts.dense_output),
+        )),
         Method::Adams => Ok(Box::new(crate::multistep::Adams::new(n))),
         Method::Bdf => Ok(Box::new(crate::multistep::Bdf::new(
             n,

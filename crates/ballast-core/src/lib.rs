@@ -40,11 +40,11 @@ pub mod scheme;
 pub mod stability;
 pub mod system;
 
-pub use matrix::Jacobian;
 pub use build::{build, BuildError};
+pub use matrix::Jacobian;
 pub use method::{Method, SwitchPair};
-pub use options::{ImplicitOptions, JacobianSource, SchemeOptions};
 pub use norm::{Atol, ErrorNorm, Reduction};
+pub use options::{ImplicitOptions, JacobianSource, SchemeOptions};
 pub use problem::{Problem, WorkCounters};
 pub use scheme::{Attempt, Scheme, SchemeState, StepFailure};
 pub use system::{ByRef, SparsityPattern, Structure, System, WithJacobian, WithStructure};

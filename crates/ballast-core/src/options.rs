@@ -48,8 +48,22 @@ impl Default for ImplicitOptions {
 }
 
 /// Everything needed to build a scheme besides the method and the dimension.
-#[derive(Clone, Debug, PartialEq, Default)]
+#[derive(Clone, Debug, PartialEq)]
 pub struct SchemeOptions {
     /// Settings for implicit schemes (ignored by explicit ones).
     pub implicit: ImplicitOptions,
+    /// Whether the run needs the schemes' own continuous extensions. When
+    /// `false` a scheme may skip work that serves only dense output
+    /// (Dormand–Prince 8(5,3) then saves its three extra stages per step and
+    /// interpolates by cubic Hermite). Default `true`.
+    pub dense_output: bool,
+}
+
+impl Default for SchemeOptions {
+    fn default() -> Self {
+        Self {
+            implicit: ImplicitOptions::default(),
+            dense_output: true,
+        }
+    }
 }
