@@ -5,8 +5,8 @@
 use std::panic::{catch_unwind, AssertUnwindSafe};
 
 use ballast::{
-    integrate, Error, Event, Jacobian, Method, Options, Output, Run, Solution, SparsityPattern,
-    Structure, WithJacobian,
+    integrate, Error, Event, Jacobian, JacobianSource, Method, Options, Output, Run, Solution,
+    SparsityPattern, Structure, WithJacobian,
 };
 
 fn decay(_t: f64, y: &[f64], dy: &mut [f64]) {
@@ -42,234 +42,57 @@ macro_rules! rejects {
     }};
 }
 
+/// One line per bad input: the case, the run's span, `y0` and options,
+/// and the error it must give.
+macro_rules! input {
+    ($case:expr, $span:expr, $y0:expr, $opts:expr => $pattern:pat) => {
+        rejects!($case, run($case, $span, $y0, &$opts), $pattern)
+    };
+}
+
 #[test]
+#[rustfmt::skip]
 fn bad_input_table() {
     let o = Options::default;
     let y = [1.0];
     let span = (0.0, 1.0);
-    rejects!(
-        "y0 NaN",
-        run("y0 NaN", span, &[1.0, f64::NAN], &o()),
-        Error::NonFiniteInitialState { index: 1, .. }
-    );
-    rejects!(
-        "y0 +inf",
-        run("y0 +inf", span, &[f64::INFINITY], &o()),
-        Error::NonFiniteInitialState { index: 0, .. }
-    );
-    rejects!(
-        "y0 -inf",
-        run("y0 -inf", span, &[f64::NEG_INFINITY], &o()),
-        Error::NonFiniteInitialState { index: 0, .. }
-    );
-    rejects!(
-        "y0 empty",
-        run("y0 empty", span, &[], &o()),
-        Error::EmptyState
-    );
-    rejects!(
-        "rtol 0",
-        run("rtol 0", span, &y, &o().rtol(0.0)),
-        Error::InvalidTolerance { .. }
-    );
-    rejects!(
-        "rtol < 0",
-        run("rtol < 0", span, &y, &o().rtol(-1e-6)),
-        Error::InvalidTolerance { .. }
-    );
-    rejects!(
-        "rtol NaN",
-        run("rtol NaN", span, &y, &o().rtol(f64::NAN)),
-        Error::InvalidTolerance { .. }
-    );
-    rejects!(
-        "rtol inf",
-        run("rtol inf", span, &y, &o().rtol(f64::INFINITY)),
-        Error::InvalidTolerance { .. }
-    );
-    rejects!(
-        "rtol 1e-30",
-        run("rtol 1e-30", span, &y, &o().rtol(1e-30)),
-        Error::RtolTooSmall { .. }
-    );
-    rejects!(
-        "atol 0",
-        run("atol 0", span, &y, &o().atol(0.0)),
-        Error::InvalidTolerance { .. }
-    );
-    rejects!(
-        "atol < 0",
-        run("atol < 0", span, &y, &o().atol(-1.0)),
-        Error::InvalidTolerance { .. }
-    );
-    rejects!(
-        "atol NaN",
-        run("atol NaN", span, &y, &o().atol(f64::NAN)),
-        Error::InvalidTolerance { .. }
-    );
-    rejects!(
-        "atol length",
-        run(
-            "atol length",
-            span,
-            &[1.0, 2.0],
-            &o().atol_per_component(vec![1e-9; 3])
-        ),
-        Error::AtolLength {
-            expected: 2,
-            got: 3
-        }
-    );
-    rejects!(
-        "atol[1] 0",
-        run(
-            "atol[1] 0",
-            span,
-            &[1.0, 2.0],
-            &o().atol_per_component(vec![1e-9, 0.0])
-        ),
-        Error::InvalidTolerance { .. }
-    );
-    rejects!(
-        "t0 == t1",
-        run("t0 == t1", (1.0, 1.0), &y, &o()),
-        Error::EmptySpan { .. }
-    );
-    rejects!(
-        "span [0, inf]",
-        run("span [0, inf]", (0.0, f64::INFINITY), &y, &o()),
-        Error::NonFiniteSpan { .. }
-    );
-    rejects!(
-        "span [-inf, 0]",
-        run("span [-inf, 0]", (f64::NEG_INFINITY, 0.0), &y, &o()),
-        Error::NonFiniteSpan { .. }
-    );
-    rejects!(
-        "span [NaN, 1]",
-        run("span [NaN, 1]", (f64::NAN, 1.0), &y, &o()),
-        Error::NonFiniteSpan { .. }
-    );
-    rejects!(
-        "span overflows",
-        run("span overflows", (-f64::MAX, f64::MAX), &y, &o()),
-        Error::SpanTooLong { .. }
-    );
-    rejects!(
-        "fixed_step 0",
-        run("fixed_step 0", span, &y, &o().fixed_step(0.0)),
-        Error::InvalidStep {
-            name: "fixed_step",
-            ..
-        }
-    );
-    rejects!(
-        "first_step < 0",
-        run("first_step < 0", span, &y, &o().first_step(-0.1)),
-        Error::InvalidStep {
-            name: "first_step",
-            ..
-        }
-    );
-    rejects!(
-        "max_step NaN",
-        run("max_step NaN", span, &y, &o().max_step(f64::NAN)),
-        Error::InvalidStep {
-            name: "max_step",
-            ..
-        }
-    );
-    rejects!(
-        "min_step < 0",
-        run("min_step < 0", span, &y, &o().min_step(-1.0)),
-        Error::InvalidStep {
-            name: "min_step",
-            ..
-        }
-    );
-    rejects!(
-        "min > max step",
-        run(
-            "min > max step",
-            span,
-            &y,
-            &o().min_step(0.1).max_step(0.01)
-        ),
-        Error::StepBoundsCrossed { .. }
-    );
-    rejects!(
-        "max_steps 0",
-        run("max_steps 0", span, &y, &o().max_steps(0)),
-        Error::ZeroMaxSteps
-    );
-    rejects!(
-        "no fixed step",
-        run("no fixed step", span, &y, &o().method(Method::Rk4)),
-        Error::FixedStepRequired(Method::Rk4)
-    );
-    rejects!(
-        "output time outside",
-        run(
-            "output time outside",
-            span,
-            &y,
-            &o().output_at(vec![0.5, 2.0])
-        ),
-        Error::OutputTimeOutsideSpan { .. }
-    );
-    rejects!(
-        "output time NaN",
-        run("output time NaN", span, &y, &o().output_at(vec![f64::NAN])),
-        Error::OutputTimeOutsideSpan { .. }
-    );
-    rejects!(
-        "breakpoint NaN",
-        run(
-            "breakpoint NaN",
-            span,
-            &y,
-            &o().breakpoints(vec![0.5, f64::NAN])
-        ),
-        Error::NonFiniteBreakpoint { .. }
-    );
-    rejects!(
-        "newton iters 0",
-        run("newton iters 0", span, &y, &o().max_newton_iters(0)),
-        Error::InvalidSetup(_)
-    );
-    rejects!(
-        "full band",
-        run(
-            "full band",
-            span,
-            &[1.0, 2.0],
-            &o().jacobian_structure(Structure::Banded { lower: 2, upper: 2 })
-        ),
-        Error::InvalidSetup(_)
-    );
+    input!("y0 NaN", span, &[1.0, f64::NAN], o() => Error::NonFiniteInitialState { index: 1, .. });
+    input!("y0 +inf", span, &[f64::INFINITY], o() => Error::NonFiniteInitialState { index: 0, .. });
+    input!("y0 -inf", span, &[f64::NEG_INFINITY], o() => Error::NonFiniteInitialState { index: 0, .. });
+    input!("y0 empty", span, &[], o() => Error::EmptyState);
+    input!("rtol 0", span, &y, o().rtol(0.0) => Error::InvalidTolerance { .. });
+    input!("rtol < 0", span, &y, o().rtol(-1e-6) => Error::InvalidTolerance { .. });
+    input!("rtol NaN", span, &y, o().rtol(f64::NAN) => Error::InvalidTolerance { .. });
+    input!("rtol inf", span, &y, o().rtol(f64::INFINITY) => Error::InvalidTolerance { .. });
+    input!("rtol 1e-30", span, &y, o().rtol(1e-30) => Error::RtolTooSmall { .. });
+    input!("atol 0", span, &y, o().atol(0.0) => Error::InvalidTolerance { .. });
+    input!("atol < 0", span, &y, o().atol(-1.0) => Error::InvalidTolerance { .. });
+    input!("atol NaN", span, &y, o().atol(f64::NAN) => Error::InvalidTolerance { .. });
+    input!("atol length", span, &[1.0, 2.0], o().atol_per_component(vec![1e-9; 3]) => Error::AtolLength { expected: 2, got: 3 });
+    input!("atol[1] 0", span, &[1.0, 2.0], o().atol_per_component(vec![1e-9, 0.0]) => Error::InvalidTolerance { .. });
+    input!("t0 == t1", (1.0, 1.0), &y, o() => Error::EmptySpan { .. });
+    input!("span [0, inf]", (0.0, f64::INFINITY), &y, o() => Error::NonFiniteSpan { .. });
+    input!("span [-inf, 0]", (f64::NEG_INFINITY, 0.0), &y, o() => Error::NonFiniteSpan { .. });
+    input!("span [NaN, 1]", (f64::NAN, 1.0), &y, o() => Error::NonFiniteSpan { .. });
+    input!("span overflows", (-f64::MAX, f64::MAX), &y, o() => Error::SpanTooLong { .. });
+    input!("fixed_step 0", span, &y, o().fixed_step(0.0) => Error::InvalidStep { name: "fixed_step", .. });
+    input!("first_step < 0", span, &y, o().first_step(-0.1) => Error::InvalidStep { name: "first_step", .. });
+    input!("max_step NaN", span, &y, o().max_step(f64::NAN) => Error::InvalidStep { name: "max_step", .. });
+    input!("min_step < 0", span, &y, o().min_step(-1.0) => Error::InvalidStep { name: "min_step", .. });
+    input!("min > max step", span, &y, o().min_step(0.1).max_step(0.01) => Error::StepBoundsCrossed { .. });
+    input!("max_steps 0", span, &y, o().max_steps(0) => Error::ZeroMaxSteps);
+    input!("no fixed step", span, &y, o().method(Method::Rk4) => Error::FixedStepRequired(Method::Rk4));
+    input!("output time outside", span, &y, o().output_at(vec![0.5, 2.0]) => Error::OutputTimeOutsideSpan { .. });
+    input!("output time NaN", span, &y, o().output_at(vec![f64::NAN]) => Error::OutputTimeOutsideSpan { .. });
+    input!("breakpoint NaN", span, &y, o().breakpoints(vec![0.5, f64::NAN]) => Error::NonFiniteBreakpoint { .. });
+    input!("newton iters 0", span, &y, o().max_newton_iters(0) => Error::InvalidSetup(_));
+    input!("pattern size", span, &[1.0, 2.0], o().jacobian_structure(Structure::Sparse(SparsityPattern::diagonal(3))) => Error::JacobianDimension { state: 2, jacobian: 3 });
+    input!("full band", span, &[1.0, 2.0], o().jacobian_structure(Structure::Banded { lower: 2, upper: 2 }) => Error::InvalidSetup(_));
+    input!("analytic Jacobian missing", span, &y, o().method(Method::RadauIIA5).jacobian(JacobianSource::Analytic) => Error::InvalidSetup(_));
     // The boundary values themselves are accepted.
-    let ok = run(
-        "rtol at its floor",
-        (0.0, 0.1),
-        &y,
-        &o().rtol(Options::MIN_RTOL)
-            .atol(1e-300)
-            .method(Method::DormandPrince54),
-    );
+    let floor = o().rtol(Options::MIN_RTOL).atol(1e-300).method(Method::DormandPrince54);
+    let ok = run("rtol at its floor", (0.0, 0.1), &y, &floor);
     assert!(ok.is_ok(), "{ok:?}");
-    rejects!(
-        "pattern size",
-        run(
-            "pattern size",
-            span,
-            &[1.0, 2.0],
-            &o().jacobian_structure(Structure::Sparse(SparsityPattern::diagonal(3)))
-        ),
-        Error::JacobianDimension {
-            state: 2,
-            jacobian: 3
-        }
-    );
 }
 
 /// A user Jacobian whose declared sparsity pattern does not match `y0`.
