@@ -164,6 +164,26 @@ impl Options {
 
     /// Times the integrator must step onto exactly (known discontinuities
     /// of the forcing); the scheme restarts there (multistep at low order).
+    ///
+    /// The step before a breakpoint ends one float short of it and the
+    /// scheme restarts one float past it, so no stage evaluates `f` at the
+    /// breakpoint itself: a forcing that jumps there is seen from the
+    /// correct side whichever side it assigns to the breakpoint. The output
+    /// reports the breakpoint's own time. Breakpoints outside the span, on
+    /// its ends, or within two floats of another are ignored.
+    ///
+    /// ```
+    /// use ballast::{integrate, Options};
+    /// // y' = -y + H(t - 1), y(0) = 1; closed form after the jump:
+    /// // y = 1 + (e^{-1} - 1) e^{-(t - 1)}.
+    /// let f = |t: f64, y: &[f64], dy: &mut [f64]| dy[0] = -y[0] + if t >= 1.0 { 1.0 } else { 0.0 };
+    /// let sol = integrate(f, (0.0, 2.0), &[1.0],
+    ///     &Options::default().rtol(1e-8).atol(1e-10).breakpoints(vec![1.0]))?;
+    /// assert!(sol.times().contains(&1.0));
+    /// let exact = 1.0 + ((-1.0f64).exp() - 1.0) * (-1.0f64).exp();
+    /// assert!((sol.y_final()[0] - exact).abs() < 1e-6);
+    /// # Ok::<(), ballast::Error>(())
+    /// ```
     pub fn breakpoints(mut self, times: Vec<f64>) -> Self {
         self.breakpoints = times;
         self
