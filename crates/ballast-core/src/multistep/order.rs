@@ -21,7 +21,8 @@
 //!   step and order before another change is considered (the history is
 //!   then again made of the formula's own equally spaced values);
 //! * a change is made only when it gains enough (`eta >= min_gain`) or must
-//!   shrink (`eta < 1`);
+//!   shrink (`eta < 1`); while waiting, only a shrink the error asks for
+//!   (`eta_q < 0.9`) is made — it would otherwise come as a rejection;
 //! * the ratio is kept in `[0.2, max_growth]`, with `max_growth = 2` from
 //!   order 2 on and `10` at order 1 (a one-step formula, stable for any
 //!   ratio; this lets the start-up from a small step grow quickly).
@@ -77,6 +78,8 @@ const BIAS: [f64; 3] = [1.3, 1.2, 1.4];
 const FIRST_ORDER_GROWTH: f64 = 10.0;
 /// Smallest ratio.
 const MIN_RATIO: f64 = 0.2;
+/// While waiting, shrink when the current order's `eta` is below this.
+const WAIT_SHRINK: f64 = 0.9;
 
 fn eta(err: f64, k: usize, bias: f64) -> f64 {
     1.0 / (bias * err.max(1e-16).powf(1.0 / (k + 1) as f64))
@@ -156,7 +159,18 @@ impl OrderSelector {
             };
         }
         if self.wait > 0 {
-            return keep;
+            // Waiting forbids increases and order changes, not a decrease
+            // that the error already asks for: the next step would likely
+            // be rejected, which changes the step anyway.
+            let f = eta(e.current, q, BIAS[1]);
+            return if f < WAIT_SHRINK {
+                Decision {
+                    order: q,
+                    factor: f.max(MIN_RATIO),
+                }
+            } else {
+                keep
+            };
         }
         let mut best = Decision {
             order: q,
@@ -263,6 +277,23 @@ mod tests {
         assert_eq!(d.factor, 2.0, "growth capped");
         s.accepted(3, &d);
         assert_eq!(s.wait, 5);
+    }
+
+    #[test]
+    fn waiting_still_shrinks_when_the_error_asks() {
+        let s = OrderSelector::new(5, None, 1.2);
+        let near = Estimates {
+            lower: None,
+            current: 0.9,
+            higher: None,
+        };
+        let d = s.on_success(5, &near);
+        assert!(s.wait > 0 && d.order == 5 && d.factor < 0.9, "{d:?}");
+        let fine = Estimates {
+            current: 0.05,
+            ..near
+        };
+        assert_eq!(s.on_success(5, &fine).factor, 1.0);
     }
 
     #[test]
