@@ -106,6 +106,9 @@ fn oscillator_zero_crossings_rising_and_falling() {
     for method in [
         Method::DormandPrince54,
         Method::DormandPrince853,
+        Method::RadauIIA5,
+        Method::Adams,
+        Method::Bdf,
         Method::default(),
     ] {
         let opts = Options::default().rtol(rtol).atol(1e-12).method(method);
@@ -119,16 +122,22 @@ fn oscillator_zero_crossings_rising_and_falling() {
         let zeros = cosine_zeros(10.0);
         assert_eq!(zeros.len(), 10);
         assert_eq!(sol.events().len(), zeros.len(), "{method}");
+        // Global error within 100 x the tolerance; BDF's numerical damping
+        // of the oscillation costs it more over ten periods (measured 370 x).
+        let slack = if method == Method::Bdf { 1000.0 } else { 100.0 };
         for (ev, &(t, rising)) in sol.events().iter().zip(&zeros) {
             assert_eq!(ev.rising, rising);
             assert_eq!(ev.index, if rising { 0 } else { 1 });
             assert!(!ev.terminal);
-            // Time error ~ state error / |y'| with |y'| = omega at a zero;
-            // allow 100 x the tolerance.
-            assert!((ev.t - t).abs() < 100.0 * rtol, "{method}: {} vs {t}", ev.t);
-            assert!(ev.y[0].abs() < 100.0 * rtol);
+            // Time error ~ state error / |y'| with |y'| = omega at a zero.
+            assert!((ev.t - t).abs() < slack * rtol, "{method}: {} vs {t}", ev.t);
+            assert!(ev.y[0].abs() < slack * rtol, "{method}: y = {}", ev.y[0]);
             let slope = -OMEGA * (OMEGA * t).sin();
-            assert!((ev.y[1] - slope).abs() < 100.0 * rtol * OMEGA);
+            assert!(
+                (ev.y[1] - slope).abs() < slack * rtol * OMEGA,
+                "{method}: y' = {} vs {slope}",
+                ev.y[1]
+            );
         }
     }
 }
