@@ -25,6 +25,7 @@
 
 pub mod build;
 pub mod control;
+mod endpoints;
 pub mod explicit;
 pub mod implicit;
 pub mod jacobian;

@@ -14,6 +14,7 @@
 //! (II.6). Coefficients: [`super::dop853_tableau`].
 
 use super::dop853_tableau::{self as tab, ALL_STAGES, DENSE, DENSE_DEGREE, STEP_STAGES};
+use crate::endpoints::Endpoints;
 use crate::method::Method;
 use crate::norm::ErrorNorm;
 use crate::problem::Problem;
@@ -73,10 +74,8 @@ fn stage_input(out: &mut [f64], y: &[f64], h: f64, row: &[f64], k: &[Vec<f64>], 
 #[derive(Debug)]
 pub struct Dop853 {
     n: usize,
-    t: f64,
-    y: Vec<f64>,
-    t_prev: f64,
-    y_prev: Vec<f64>,
+    /// The end points; the slope `f(t, y)` is `k[first]`.
+    ends: Endpoints,
     y_new: Vec<f64>,
     /// Stage derivatives: 12 stages, the FSAL stage, 3 dense-output stages.
     k: Vec<Vec<f64>>,
@@ -88,8 +87,6 @@ pub struct Dop853 {
     e5: Vec<f64>,
     e3: Vec<f64>,
     h: f64,
-    h_last: f64,
-    have_f0: bool,
     dense_stages: bool,
     spectral: Option<f64>,
 }
@@ -101,10 +98,7 @@ impl Dop853 {
     pub fn new(n: usize) -> Self {
         Self {
             n,
-            t: 0.0,
-            y: vec![0.0; n],
-            t_prev: 0.0,
-            y_prev: vec![0.0; n],
+            ends: Endpoints::new(n),
             y_new: vec![0.0; n],
             k: vec![vec![0.0; n]; ALL_STAGES],
             first: 0,
@@ -113,8 +107,6 @@ impl Dop853 {
             e5: vec![0.0; n],
             e3: vec![0.0; n],
             h: 0.0,
-            h_last: 0.0,
-            have_f0: false,
             dense_stages: true,
             spectral: None,
         }
@@ -127,6 +119,14 @@ impl Dop853 {
     pub fn with_dense_output(mut self, on: bool) -> Self {
         self.dense_stages = on;
         self
+    }
+
+    /// The slopes at the start and the end of the last accepted step.
+    fn step_slopes(&self) -> (&[f64], &[f64]) {
+        (
+            &self.k[slot(0, self.dense_first)],
+            &self.k[slot(FSAL, self.dense_first)],
+        )
     }
 }
 
@@ -148,40 +148,31 @@ impl SchemeState for Dop853 {
     }
 
     fn t(&self) -> f64 {
-        self.t
+        self.ends.t
     }
 
     fn y(&self) -> &[f64] {
-        &self.y
+        &self.ends.y
     }
 
     fn dydt(&self) -> Option<&[f64]> {
-        self.have_f0.then(|| self.k[self.first].as_slice())
+        self.ends.dydt(&self.k[self.first])
     }
 
     fn t_prev(&self) -> f64 {
-        self.t_prev
+        self.ends.t_prev
     }
 
     fn interpolate(&self, t: f64, out: &mut [f64]) {
-        let h = self.h_last;
-        if h == 0.0 {
-            out.copy_from_slice(&self.y);
-            return;
-        }
-        let theta = (t - self.t_prev) / h;
         if !self.dense_stages {
-            let f0 = &self.k[slot(0, self.dense_first)];
-            let f1 = &self.k[slot(FSAL, self.dense_first)];
-            for m in 0..self.n {
-                let d = self.y[m] - self.y_prev[m];
-                let c2 = 3.0 * d - 2.0 * h * f0[m] - h * f1[m];
-                let c3 = -2.0 * d + h * f0[m] + h * f1[m];
-                out[m] = self.y_prev[m] + theta * (h * f0[m] + theta * (c2 + theta * c3));
-            }
-            return;
+            let (f0, f1) = self.step_slopes();
+            return self.ends.hermite(t, f0, f1, out);
         }
-        out.copy_from_slice(&self.y_prev);
+        let Some(theta) = self.ends.step_fraction(t, out) else {
+            return;
+        };
+        let h = self.ends.h_last;
+        out.copy_from_slice(&self.ends.y_prev);
         for (i, w) in DENSE.iter().enumerate() {
             let mut bi = 0.0;
             for &c in w.iter().rev() {
@@ -206,20 +197,13 @@ impl SchemeState for Dop853 {
     }
 
     fn dense_coefficients(&self, coeffs: &mut [f64]) {
-        let n = self.n;
-        let h = self.h_last;
-        coeffs[..n].copy_from_slice(&self.y_prev);
         if !self.dense_stages {
-            let f0 = &self.k[slot(0, self.dense_first)];
-            let f1 = &self.k[slot(FSAL, self.dense_first)];
-            for m in 0..n {
-                let d = self.y[m] - self.y_prev[m];
-                coeffs[n + m] = h * f0[m];
-                coeffs[2 * n + m] = 3.0 * d - 2.0 * h * f0[m] - h * f1[m];
-                coeffs[3 * n + m] = -2.0 * d + h * f0[m] + h * f1[m];
-            }
-            return;
+            let (f0, f1) = self.step_slopes();
+            return self.ends.hermite_coefficients(f0, f1, coeffs);
         }
+        let n = self.n;
+        let h = self.ends.h_last;
+        coeffs[..n].copy_from_slice(&self.ends.y_prev);
         coeffs[n..(DENSE_DEGREE + 1) * n].fill(0.0);
         for (i, w) in DENSE.iter().enumerate() {
             let ki = &self.k[slot(i, self.dense_first)];
@@ -244,21 +228,10 @@ impl SchemeState for Dop853 {
 
 impl<S: System> Scheme<S> for Dop853 {
     fn start(&mut self, p: &mut Problem<S>, t: f64, y: &[f64]) -> Result<(), StepFailure> {
-        self.t = t;
-        self.t_prev = t;
-        self.y.copy_from_slice(y);
-        self.y_prev.copy_from_slice(y);
-        self.h_last = 0.0;
         self.first = 0;
         self.dense_first = 0;
         self.spectral = None;
-        p.rhs(t, &self.y, &mut self.k[0]);
-        self.have_f0 = self.k[0].iter().all(|v| v.is_finite());
-        if self.have_f0 {
-            Ok(())
-        } else {
-            Err(StepFailure::NonFinite)
-        }
+        self.ends.start(p, t, y, &mut self.k[0])
     }
 
     fn attempt(
@@ -268,22 +241,19 @@ impl<S: System> Scheme<S> for Dop853 {
         norm: &ErrorNorm,
     ) -> Result<Attempt, StepFailure> {
         let first = self.first;
-        if !self.have_f0 {
-            p.rhs(self.t, &self.y, &mut self.k[first]);
-            self.have_f0 = true;
-        }
+        self.ends.ensure_f(p, &mut self.k[first]);
         self.h = h;
         self.spectral = None;
         for i in 1..STEP_STAGES {
-            stage_input(&mut self.tmp, &self.y, h, tab::A[i], &self.k, first);
+            stage_input(&mut self.tmp, &self.ends.y, h, tab::A[i], &self.k, first);
             p.rhs(
-                self.t + tab::C[i] * h,
+                self.ends.t + tab::C[i] * h,
                 &self.tmp,
                 &mut self.k[slot(i, first)],
             );
         }
         // `tmp` now holds the stage input of stage 11 (at c = 1).
-        stage_input(&mut self.y_new, &self.y, h, &tab::B, &self.k, first);
+        stage_input(&mut self.y_new, &self.ends.y, h, &tab::B, &self.k, first);
         self.e5.fill(0.0);
         self.e3.fill(0.0);
         for j in 0..STEP_STAGES {
@@ -297,8 +267,8 @@ impl<S: System> Scheme<S> for Dop853 {
                 self.e3[m] += a3 * kj[m];
             }
         }
-        let err5 = norm.rms(&self.e5, &self.y, &self.y_new);
-        let err3 = norm.rms(&self.e3, &self.y, &self.y_new);
+        let err5 = norm.rms(&self.e5, &self.ends.y, &self.y_new);
+        let err3 = norm.rms(&self.e3, &self.ends.y, &self.y_new);
         let sq = err5 * err5;
         let deno = sq + 0.01 * err3 * err3;
         let error = if deno > 0.0 { sq / deno.sqrt() } else { sq };
@@ -306,7 +276,7 @@ impl<S: System> Scheme<S> for Dop853 {
             return Err(StepFailure::NonFinite);
         }
         let fsal = slot(FSAL, first);
-        p.rhs(self.t + h, &self.y_new, &mut self.k[fsal]);
+        p.rhs(self.ends.t + h, &self.y_new, &mut self.k[fsal]);
         // Free stiffness estimate from the two stages at c = 1.
         let k11 = &self.k[slot(STEP_STAGES - 1, first)];
         for m in 0..self.n {
@@ -326,27 +296,23 @@ impl<S: System> Scheme<S> for Dop853 {
 
     fn accept(&mut self, p: &mut Problem<S>) {
         let first = self.first;
-        self.t_prev = self.t;
-        self.t += self.h;
-        self.h_last = self.h;
-        std::mem::swap(&mut self.y_prev, &mut self.y);
-        std::mem::swap(&mut self.y, &mut self.y_new);
+        self.ends.advance(self.h, &mut self.y_new);
         if self.dense_stages {
             for i in FSAL + 1..ALL_STAGES {
                 stage_input(
                     &mut self.tmp,
-                    &self.y_prev,
+                    &self.ends.y_prev,
                     self.h,
                     tab::A[i],
                     &self.k,
                     first,
                 );
-                p.rhs(self.t_prev + tab::C[i] * self.h, &self.tmp, &mut self.k[i]);
+                let ti = self.ends.t_prev + tab::C[i] * self.h;
+                p.rhs(ti, &self.tmp, &mut self.k[i]);
             }
         }
         self.dense_first = first;
         self.first = slot(FSAL, first);
-        self.have_f0 = true;
     }
 
     fn reject(&mut self) {}

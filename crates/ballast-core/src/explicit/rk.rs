@@ -12,6 +12,7 @@
 //! first stage and as the end slope of Hermite dense output.
 
 use super::tableau::Tableau;
+use crate::endpoints::Endpoints;
 use crate::method::Method;
 use crate::norm::ErrorNorm;
 use crate::problem::Problem;
@@ -23,10 +24,8 @@ use crate::system::System;
 pub struct ExplicitRk {
     tab: &'static Tableau,
     n: usize,
-    t: f64,
-    y: Vec<f64>,
-    t_prev: f64,
-    y_prev: Vec<f64>,
+    /// The end points; the slope `f(t, y)` is `k[0]`.
+    ends: Endpoints,
     /// Stage derivatives; `k[s]` holds `f(t_{n+1}, y_{n+1})` for non-FSAL tableaux.
     k: Vec<Vec<f64>>,
     /// After `accept`, stage `0` of the last step lives at index `swapped_first`
@@ -35,8 +34,6 @@ pub struct ExplicitRk {
     y_new: Vec<f64>,
     tmp: Vec<f64>,
     h: f64,
-    h_last: f64,
-    have_f0: bool,
 }
 
 impl ExplicitRk {
@@ -47,17 +44,12 @@ impl ExplicitRk {
         Self {
             tab,
             n,
-            t: 0.0,
-            y: vec![0.0; n],
-            t_prev: 0.0,
-            y_prev: vec![0.0; n],
+            ends: Endpoints::new(n),
             k: vec![vec![0.0; n]; s + extra],
             swapped_first: None,
             y_new: vec![0.0; n],
             tmp: vec![0.0; n],
             h: 0.0,
-            h_last: 0.0,
-            have_f0: false,
         }
     }
 
@@ -109,59 +101,41 @@ impl SchemeState for ExplicitRk {
     }
 
     fn t(&self) -> f64 {
-        self.t
+        self.ends.t
     }
 
     fn y(&self) -> &[f64] {
-        &self.y
+        &self.ends.y
     }
 
     fn dydt(&self) -> Option<&[f64]> {
-        if self.have_f0 {
-            Some(&self.k[0])
-        } else {
-            None
-        }
+        self.ends.dydt(&self.k[0])
     }
 
     fn t_prev(&self) -> f64 {
-        self.t_prev
+        self.ends.t_prev
     }
 
     fn interpolate(&self, t: f64, out: &mut [f64]) {
-        let h = self.h_last;
-        if h == 0.0 {
-            out.copy_from_slice(&self.y);
+        let Some(weights) = self.tab.dense else {
+            return self.ends.hermite(t, self.stage(0), &self.k[0], out);
+        };
+        let Some(theta) = self.ends.step_fraction(t, out) else {
             return;
-        }
-        let theta = (t - self.t_prev) / h;
-        match self.tab.dense {
-            Some(weights) => {
-                out.copy_from_slice(&self.y_prev);
-                for (i, w) in weights.iter().enumerate() {
-                    // b_i(theta) by Horner's rule on theta^1..theta^d.
-                    let mut bi = 0.0;
-                    for &c in w.iter().rev() {
-                        bi = (bi + c) * theta;
-                    }
-                    if bi != 0.0 {
-                        let hb = h * bi;
-                        let ki = self.stage(i);
-                        for m in 0..self.n {
-                            out[m] += hb * ki[m];
-                        }
-                    }
-                }
+        };
+        let h = self.ends.h_last;
+        out.copy_from_slice(&self.ends.y_prev);
+        for (i, w) in weights.iter().enumerate() {
+            // b_i(theta) by Horner's rule on theta^1..theta^d.
+            let mut bi = 0.0;
+            for &c in w.iter().rev() {
+                bi = (bi + c) * theta;
             }
-            None => {
-                let f0 = self.stage(0);
-                let f1 = &self.k[0];
-                let (t2, t3) = (theta * theta, theta * theta * theta);
+            if bi != 0.0 {
+                let hb = h * bi;
+                let ki = self.stage(i);
                 for m in 0..self.n {
-                    let d = self.y[m] - self.y_prev[m];
-                    let c2 = 3.0 * d - 2.0 * h * f0[m] - h * f1[m];
-                    let c3 = -2.0 * d + h * f0[m] + h * f1[m];
-                    out[m] = self.y_prev[m] + theta * h * f0[m] + t2 * c2 + t3 * c3;
+                    out[m] += hb * ki[m];
                 }
             }
         }
@@ -175,34 +149,25 @@ impl SchemeState for ExplicitRk {
     }
 
     fn dense_coefficients(&self, coeffs: &mut [f64]) {
+        let Some(weights) = self.tab.dense else {
+            return self
+                .ends
+                .hermite_coefficients(self.stage(0), &self.k[0], coeffs);
+        };
         let n = self.n;
-        let h = self.h_last;
-        coeffs[..n].copy_from_slice(&self.y_prev);
-        match self.tab.dense {
-            Some(weights) => {
-                let deg = weights[0].len();
-                coeffs[n..(deg + 1) * n].fill(0.0);
-                for (i, w) in weights.iter().enumerate() {
-                    let ki = self.stage(i);
-                    for (k, &c) in w.iter().enumerate() {
-                        if c != 0.0 {
-                            let hc = h * c;
-                            let row = &mut coeffs[(k + 1) * n..(k + 2) * n];
-                            for m in 0..n {
-                                row[m] += hc * ki[m];
-                            }
-                        }
+        let h = self.ends.h_last;
+        coeffs[..n].copy_from_slice(&self.ends.y_prev);
+        let deg = weights[0].len();
+        coeffs[n..(deg + 1) * n].fill(0.0);
+        for (i, w) in weights.iter().enumerate() {
+            let ki = self.stage(i);
+            for (k, &c) in w.iter().enumerate() {
+                if c != 0.0 {
+                    let hc = h * c;
+                    let row = &mut coeffs[(k + 1) * n..(k + 2) * n];
+                    for m in 0..n {
+                        row[m] += hc * ki[m];
                     }
-                }
-            }
-            None => {
-                let f0 = self.stage(0);
-                let f1 = &self.k[0];
-                for m in 0..n {
-                    let d = self.y[m] - self.y_prev[m];
-                    coeffs[n + m] = h * f0[m];
-                    coeffs[2 * n + m] = 3.0 * d - 2.0 * h * f0[m] - h * f1[m];
-                    coeffs[3 * n + m] = -2.0 * d + h * f0[m] + h * f1[m];
                 }
             }
         }
@@ -241,20 +206,8 @@ impl SchemeState for ExplicitRk {
 
 impl<S: System> Scheme<S> for ExplicitRk {
     fn start(&mut self, p: &mut Problem<S>, t: f64, y: &[f64]) -> Result<(), StepFailure> {
-        self.t = t;
-        self.t_prev = t;
-        self.y.copy_from_slice(y);
-        self.y_prev.copy_from_slice(y);
         self.swapped_first = None;
-        self.h_last = 0.0;
-        p.rhs(t, &self.y, &mut self.k[0]);
-        self.have_f0 = true;
-        if self.k[0].iter().all(|v| v.is_finite()) {
-            Ok(())
-        } else {
-            self.have_f0 = false;
-            Err(StepFailure::NonFinite)
-        }
+        self.ends.start(p, t, y, &mut self.k[0])
     }
 
     fn attempt(
@@ -266,10 +219,7 @@ impl<S: System> Scheme<S> for ExplicitRk {
         let tab = self.tab;
         let s = tab.stages();
         let n = self.n;
-        if !self.have_f0 {
-            p.rhs(self.t, &self.y, &mut self.k[0]);
-            self.have_f0 = true;
-        }
+        self.ends.ensure_f(p, &mut self.k[0]);
         // The stage buffers are in natural order again from here on.
         self.swapped_first = None;
         self.h = h;
@@ -280,7 +230,7 @@ impl<S: System> Scheme<S> for ExplicitRk {
             } else {
                 &mut self.tmp
             };
-            target.copy_from_slice(&self.y);
+            target.copy_from_slice(&self.ends.y);
             for (j, &aij) in tab.a[i].iter().enumerate() {
                 if aij != 0.0 {
                     let ha = h * aij;
@@ -290,10 +240,10 @@ impl<S: System> Scheme<S> for ExplicitRk {
                     }
                 }
             }
-            p.rhs(self.t + tab.c[i] * h, target, &mut rest[0]);
+            p.rhs(self.ends.t + tab.c[i] * h, target, &mut rest[0]);
         }
         if !tab.fsal {
-            self.y_new.copy_from_slice(&self.y);
+            self.y_new.copy_from_slice(&self.ends.y);
             for (j, &bj) in tab.b.iter().enumerate() {
                 if bj != 0.0 {
                     let hb = h * bj;
@@ -316,7 +266,7 @@ impl<S: System> Scheme<S> for ExplicitRk {
                         }
                     }
                 }
-                norm.rms(&self.tmp, &self.y, &self.y_new)
+                norm.rms(&self.tmp, &self.ends.y, &self.y_new)
             }
             None => {
                 if self.y_new.iter().all(|v| v.is_finite()) {
@@ -334,21 +284,14 @@ impl<S: System> Scheme<S> for ExplicitRk {
     }
 
     fn accept(&mut self, p: &mut Problem<S>) {
-        self.t_prev = self.t;
-        self.t += self.h;
-        self.h_last = self.h;
-        std::mem::swap(&mut self.y_prev, &mut self.y);
-        std::mem::swap(&mut self.y, &mut self.y_new);
+        self.ends.advance(self.h, &mut self.y_new);
         let last = self.new_slope_index();
         if !self.tab.fsal {
-            let (head, tail) = self.k.split_at_mut(last);
-            let _ = head;
-            p.rhs(self.t, &self.y, &mut tail[0]);
+            p.rhs(self.ends.t, &self.ends.y, &mut self.k[last]);
         }
         // f(t_{n+1}, y_{n+1}) becomes the next step's first stage.
         self.k.swap(0, last);
         self.swapped_first = Some(last);
-        self.have_f0 = true;
     }
 
     fn reject(&mut self) {}

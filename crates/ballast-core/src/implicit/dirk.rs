@@ -25,9 +25,9 @@
 //! `y_n`. Dense output: linear for backward Euler, the cubic Hermite interpolant
 //! otherwise (none of the other tableaux' publications is used for it).
 
-use super::hermite;
 use super::iteration::IterationMatrix;
 use super::tableau::{ImplicitKind, ImplicitTableau};
+use crate::endpoints::Endpoints;
 use crate::method::Method;
 use crate::newton::{NewtonControl, NewtonStatus};
 use crate::norm::ErrorNorm;
@@ -51,14 +51,10 @@ pub struct Dirk {
     estimate: Estimate,
     explicit_first: bool,
     n: usize,
-    t: f64,
-    y: Vec<f64>,
+    /// The end points of the last step; the slopes there are `f_prev` and `f0`.
+    ends: Endpoints,
     f0: Vec<f64>,
-    have_f0: bool,
-    t_prev: f64,
-    y_prev: Vec<f64>,
     f_prev: Vec<f64>,
-    h_last: f64,
     h: f64,
     k: Vec<Vec<f64>>,
     y_new: Vec<f64>,
@@ -103,14 +99,9 @@ impl Dirk {
             estimate,
             explicit_first,
             n,
-            t: 0.0,
-            y: vec![0.0; n],
+            ends: Endpoints::new(n),
             f0: vec![0.0; n],
-            have_f0: false,
-            t_prev: 0.0,
-            y_prev: vec![0.0; n],
             f_prev: vec![0.0; n],
-            h_last: 0.0,
             h: 0.0,
             k: vec![vec![0.0; n]; s],
             y_new: vec![0.0; n],
@@ -161,7 +152,7 @@ impl Dirk {
             for m in 0..self.n {
                 self.stage[m] += self.res[m];
             }
-            let dn = norm.rms_at(&self.res, &self.y);
+            let dn = norm.rms_at(&self.res, &self.ends.y);
             match self.newton.update(dn) {
                 NewtonStatus::Converged => return Ok(()),
                 NewtonStatus::Continue => {}
@@ -171,18 +162,14 @@ impl Dirk {
     }
 
     fn dense_eval(&self, t: f64, out: &mut [f64]) {
-        let h = self.h_last;
-        if h == 0.0 {
-            out.copy_from_slice(&self.y);
-            return;
+        if self.estimate != Estimate::BackwardEuler {
+            return self.ends.hermite(t, &self.f_prev, &self.f0, out);
         }
-        let theta = (t - self.t_prev) / h;
-        if self.estimate == Estimate::BackwardEuler {
+        if let Some(theta) = self.ends.step_fraction(t, out) {
+            let (y0, y1) = (&self.ends.y_prev, &self.ends.y);
             for m in 0..self.n {
-                out[m] = self.y_prev[m] + theta * (self.y[m] - self.y_prev[m]);
+                out[m] = y0[m] + theta * (y1[m] - y0[m]);
             }
-        } else {
-            hermite::eval(&self.y_prev, &self.y, &self.f_prev, &self.f0, h, theta, out);
         }
     }
 }
@@ -205,16 +192,16 @@ impl SchemeState for Dirk {
         true
     }
     fn t(&self) -> f64 {
-        self.t
+        self.ends.t
     }
     fn y(&self) -> &[f64] {
-        &self.y
+        &self.ends.y
     }
     fn dydt(&self) -> Option<&[f64]> {
-        self.have_f0.then_some(&self.f0[..])
+        self.ends.dydt(&self.f0)
     }
     fn t_prev(&self) -> f64 {
-        self.t_prev
+        self.ends.t_prev
     }
     fn interpolate(&self, t: f64, out: &mut [f64]) {
         self.dense_eval(t, out);
@@ -227,43 +214,27 @@ impl SchemeState for Dirk {
         }
     }
     fn dense_coefficients(&self, coeffs: &mut [f64]) {
-        let n = self.n;
-        if self.estimate == Estimate::BackwardEuler {
-            for m in 0..n {
-                coeffs[m] = self.y_prev[m];
-                coeffs[n + m] = self.y[m] - self.y_prev[m];
-            }
-        } else {
-            hermite::coefficients(
-                &self.y_prev,
-                &self.y,
-                &self.f_prev,
-                &self.f0,
-                self.h_last,
-                coeffs,
-            );
+        if self.estimate != Estimate::BackwardEuler {
+            return self
+                .ends
+                .hermite_coefficients(&self.f_prev, &self.f0, coeffs);
+        }
+        let (n, y0, y1) = (self.n, &self.ends.y_prev, &self.ends.y);
+        for m in 0..n {
+            coeffs[m] = y0[m];
+            coeffs[n + m] = y1[m] - y0[m];
         }
     }
 }
 
 impl<S: System> Scheme<S> for Dirk {
     fn start(&mut self, p: &mut Problem<S>, t: f64, y: &[f64]) -> Result<(), StepFailure> {
-        self.t = t;
-        self.t_prev = t;
-        self.y.copy_from_slice(y);
-        self.y_prev.copy_from_slice(y);
-        self.h_last = 0.0;
         self.iter.restart();
         self.newton.reset();
         self.last_failed = false;
-        p.rhs(t, &self.y, &mut self.f0);
+        let started = self.ends.start(p, t, y, &mut self.f0);
         self.f_prev.copy_from_slice(&self.f0);
-        self.have_f0 = self.f0.iter().all(|v| v.is_finite());
-        if self.have_f0 {
-            Ok(())
-        } else {
-            Err(StepFailure::NonFinite)
-        }
+        started
     }
 
     fn attempt(
@@ -274,12 +245,10 @@ impl<S: System> Scheme<S> for Dirk {
     ) -> Result<Attempt, StepFailure> {
         let tab = self.tab;
         let (n, s, g) = (self.n, tab.stages(), tab.gamma);
-        if !self.have_f0 {
-            p.rhs(self.t, &self.y, &mut self.f0);
-            self.have_f0 = true;
-        }
+        self.ends.ensure_f(p, &mut self.f0);
         self.h = h;
-        self.iter.ensure_jacobian(p, self.t, &self.y, &self.f0)?;
+        self.iter
+            .ensure_jacobian(p, self.ends.t, &self.ends.y, &self.f0)?;
         let h_fact = self
             .iter
             .factor(p, h, false, |hh| 1.0 / (hh * g), |_| 0.0.into())?;
@@ -290,8 +259,8 @@ impl<S: System> Scheme<S> for Dirk {
             self.k[0].copy_from_slice(&self.f0);
         }
         for i in first..s {
-            let ti = self.t + tab.c[i] * h;
-            self.base.copy_from_slice(&self.y);
+            let ti = self.ends.t + tab.c[i] * h;
+            self.base.copy_from_slice(&self.ends.y);
             for j in 0..i {
                 let ha = h * tab.a[i][j];
                 if ha != 0.0 {
@@ -301,8 +270,8 @@ impl<S: System> Scheme<S> for Dirk {
                 }
             }
             if self.last_failed {
-                self.stage.copy_from_slice(&self.y);
-            } else if self.h_last != 0.0 {
+                self.stage.copy_from_slice(&self.ends.y);
+            } else if self.ends.h_last != 0.0 {
                 let mut pred = std::mem::take(&mut self.stage);
                 self.dense_eval(ti, &mut pred);
                 self.stage = pred;
@@ -341,7 +310,7 @@ impl<S: System> Scheme<S> for Dirk {
                 }
             }
             Estimate::Trapezoid => {
-                let hl = self.h_last;
+                let hl = self.ends.h_last;
                 if hl != 0.0 {
                     let c = -h * h * h / 6.0 / (h + hl);
                     for m in 0..n {
@@ -361,7 +330,7 @@ impl<S: System> Scheme<S> for Dirk {
             *v *= scale;
         }
         self.iter.solve_real(p, &mut self.res);
-        let error = norm.rms(&self.res, &self.y, &self.y_new);
+        let error = norm.rms(&self.res, &self.ends.y, &self.y_new);
         self.last_failed = false;
         if error.is_finite() {
             Ok(Attempt::with_error(error))
@@ -372,15 +341,10 @@ impl<S: System> Scheme<S> for Dirk {
     }
 
     fn accept(&mut self, _p: &mut Problem<S>) {
-        self.t_prev = self.t;
-        self.t += self.h;
-        self.h_last = self.h;
-        std::mem::swap(&mut self.y_prev, &mut self.y);
-        std::mem::swap(&mut self.y, &mut self.y_new);
+        self.ends.advance(self.h, &mut self.y_new);
         std::mem::swap(&mut self.f_prev, &mut self.f0);
         let last = self.tab.stages() - 1;
         self.f0.copy_from_slice(&self.k[last]);
-        self.have_f0 = true;
         self.iter.after_accept(self.theta_max);
     }
 

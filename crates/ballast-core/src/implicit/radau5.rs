@@ -16,6 +16,7 @@
 use super::iteration::IterationMatrix;
 use super::radau_constants::RadauConstants;
 use super::tableau::RADAU_IIA_5;
+use crate::endpoints::Endpoints;
 use crate::method::Method;
 use crate::newton::{NewtonControl, NewtonStatus};
 use crate::norm::ErrorNorm;
@@ -34,13 +35,9 @@ const FAST_RATE: f64 = 0.1;
 pub struct Radau5 {
     k: RadauConstants,
     n: usize,
-    t: f64,
-    y: Vec<f64>,
+    /// The end points of the last step; the slope `f(t, y)` is `f0`.
+    ends: Endpoints,
     f0: Vec<f64>,
-    have_f0: bool,
-    t_prev: f64,
-    y_prev: Vec<f64>,
-    h_last: f64,
     h: f64,
     z: [Vec<f64>; 3],
     w: [Vec<f64>; 3],
@@ -78,13 +75,8 @@ impl Radau5 {
         Ok(Self {
             k,
             n,
-            t: 0.0,
-            y: vec![0.0; n],
+            ends: Endpoints::new(n),
             f0: vec![0.0; n],
-            have_f0: false,
-            t_prev: 0.0,
-            y_prev: vec![0.0; n],
-            h_last: 0.0,
             h: 0.0,
             z: three(n),
             w: three(n),
@@ -130,13 +122,14 @@ impl Radau5 {
     /// Stage predictor: the last collocation polynomial extrapolated, or zero.
     fn predict(&mut self, h: f64) {
         let t = &self.k.tinv;
-        if self.h_last != 0.0 && !self.last_failed && !self.first {
+        let ends = &self.ends;
+        if ends.h_last != 0.0 && !self.last_failed && !self.first {
             for l in 0..3 {
-                let th = 1.0 + self.k.c[l] * h / self.h_last;
+                let th = 1.0 + self.k.c[l] * h / ends.h_last;
                 for m in 0..self.n {
-                    let u = self.y_prev[m]
+                    let u = ends.y_prev[m]
                         + th * (self.cont[0][m] + th * (self.cont[1][m] + th * self.cont[2][m]));
-                    self.z[l][m] = u - self.y[m];
+                    self.z[l][m] = u - ends.y[m];
                 }
             }
         } else {
@@ -164,9 +157,9 @@ impl Radau5 {
         loop {
             for l in 0..3 {
                 for m in 0..self.n {
-                    self.tmp[m] = self.y[m] + self.z[l][m];
+                    self.tmp[m] = self.ends.y[m] + self.z[l][m];
                 }
-                p.rhs(self.t + self.k.c[l] * h, &self.tmp, &mut self.fz[l]);
+                p.rhs(self.ends.t + self.k.c[l] * h, &self.tmp, &mut self.fz[l]);
             }
             p.counters.newton_iters += 1;
             for m in 0..self.n {
@@ -181,7 +174,7 @@ impl Radau5 {
             }
             self.iter.solve_real(p, &mut self.res);
             self.iter.solve_complex(p, &mut self.cres);
-            let d0 = norm.rms_at(&self.res, &self.y);
+            let d0 = norm.rms_at(&self.res, &self.ends.y);
             for m in 0..self.n {
                 self.w[0][m] += self.res[m];
                 self.w[1][m] += self.cres[m].re;
@@ -189,8 +182,8 @@ impl Radau5 {
                 self.tmp[m] = self.cres[m].re;
                 self.res[m] = self.cres[m].im;
             }
-            let d1 = norm.rms_at(&self.tmp, &self.y);
-            let d2 = norm.rms_at(&self.res, &self.y);
+            let d1 = norm.rms_at(&self.tmp, &self.ends.y);
+            let d2 = norm.rms_at(&self.res, &self.ends.y);
             self.z_from_w();
             let dn = ((d0 * d0 + d1 * d1 + d2 * d2) / 3.0).sqrt();
             match self.newton.update(dn) {
@@ -216,7 +209,7 @@ impl Radau5 {
                 f + (dd[0] * self.z[0][m] + dd[1] * self.z[1][m] + dd[2] * self.z[2][m]) / h;
         }
         self.iter.solve_real(p, &mut self.res);
-        norm.rms(&self.res, &self.y, &self.y_new)
+        norm.rms(&self.res, &self.ends.y, &self.y_new)
     }
 }
 
@@ -234,25 +227,23 @@ impl SchemeState for Radau5 {
         true
     }
     fn t(&self) -> f64 {
-        self.t
+        self.ends.t
     }
     fn y(&self) -> &[f64] {
-        &self.y
+        &self.ends.y
     }
     fn dydt(&self) -> Option<&[f64]> {
-        self.have_f0.then_some(&self.f0[..])
+        self.ends.dydt(&self.f0)
     }
     fn t_prev(&self) -> f64 {
-        self.t_prev
+        self.ends.t_prev
     }
     fn interpolate(&self, t: f64, out: &mut [f64]) {
-        if self.h_last == 0.0 {
-            out.copy_from_slice(&self.y);
+        let Some(th) = self.ends.step_fraction(t, out) else {
             return;
-        }
-        let th = (t - self.t_prev) / self.h_last;
+        };
         for m in 0..self.n {
-            out[m] = self.y_prev[m]
+            out[m] = self.ends.y_prev[m]
                 + th * (self.cont[0][m] + th * (self.cont[1][m] + th * self.cont[2][m]));
         }
     }
@@ -261,7 +252,7 @@ impl SchemeState for Radau5 {
     }
     fn dense_coefficients(&self, coeffs: &mut [f64]) {
         let n = self.n;
-        coeffs[..n].copy_from_slice(&self.y_prev);
+        coeffs[..n].copy_from_slice(&self.ends.y_prev);
         for k in 0..3 {
             coeffs[(k + 1) * n..(k + 2) * n].copy_from_slice(&self.cont[k]);
         }
@@ -270,27 +261,16 @@ impl SchemeState for Radau5 {
 
 impl<S: System> Scheme<S> for Radau5 {
     fn start(&mut self, p: &mut Problem<S>, t: f64, y: &[f64]) -> Result<(), StepFailure> {
-        self.t = t;
-        self.t_prev = t;
-        self.y.copy_from_slice(y);
-        self.y_prev.copy_from_slice(y);
         for c in self.cont.iter_mut() {
             c.fill(0.0);
         }
-        self.h_last = 0.0;
         self.first = true;
         self.rejected_last = false;
         self.last_failed = false;
         self.last_theta = 1.0;
         self.iter.restart();
         self.newton.reset();
-        p.rhs(t, &self.y, &mut self.f0);
-        self.have_f0 = self.f0.iter().all(|v| v.is_finite());
-        if self.have_f0 {
-            Ok(())
-        } else {
-            Err(StepFailure::NonFinite)
-        }
+        self.ends.start(p, t, y, &mut self.f0)
     }
 
     fn attempt(
@@ -299,12 +279,10 @@ impl<S: System> Scheme<S> for Radau5 {
         h: f64,
         norm: &ErrorNorm,
     ) -> Result<Attempt, StepFailure> {
-        if !self.have_f0 {
-            p.rhs(self.t, &self.y, &mut self.f0);
-            self.have_f0 = true;
-        }
+        self.ends.ensure_f(p, &mut self.f0);
         self.h = h;
-        self.iter.ensure_jacobian(p, self.t, &self.y, &self.f0)?;
+        self.iter
+            .ensure_jacobian(p, self.ends.t, &self.ends.y, &self.f0)?;
         if self.last_theta >= FAST_RATE || self.rejected_last {
             self.iter.drop_factorisation();
         }
@@ -324,16 +302,16 @@ impl<S: System> Scheme<S> for Radau5 {
         self.predict(h);
         self.newton_solve(p, h, norm)?;
         for m in 0..self.n {
-            self.y_new[m] = self.y[m] + self.z[2][m];
+            self.y_new[m] = self.ends.y[m] + self.z[2][m];
         }
         let mut error = self.filtered_error(p, h, norm, false);
         if error >= 1.0 && (self.first || self.rejected_last) && error.is_finite() {
             for m in 0..self.n {
-                self.tmp[m] = self.y[m] + self.res[m];
+                self.tmp[m] = self.ends.y[m] + self.res[m];
             }
             let y1 = std::mem::take(&mut self.tmp);
             let mut f1 = std::mem::take(&mut self.fz[0]);
-            p.rhs(self.t, &y1, &mut f1);
+            p.rhs(self.ends.t, &y1, &mut f1);
             self.tmp = f1;
             self.fz[0] = y1;
             error = self.filtered_error(p, h, norm, true);
@@ -355,13 +333,8 @@ impl<S: System> Scheme<S> for Radau5 {
                 self.cont[k][m] = vi[k][0] * z0 + vi[k][1] * z1 + vi[k][2] * z2;
             }
         }
-        self.t_prev = self.t;
-        self.t += self.h;
-        self.h_last = self.h;
-        std::mem::swap(&mut self.y_prev, &mut self.y);
-        std::mem::swap(&mut self.y, &mut self.y_new);
-        p.rhs(self.t, &self.y, &mut self.f0);
-        self.have_f0 = true;
+        self.ends.advance(self.h, &mut self.y_new);
+        p.rhs(self.ends.t, &self.ends.y, &mut self.f0);
         self.last_theta = self.newton.theta();
         self.iter.after_accept(self.last_theta);
         self.first = false;

@@ -24,9 +24,9 @@
 //! Dense output: the cubic Hermite interpolant (order 3), since Lang and
 //! Verwer publish no continuous extension.
 
-use super::hermite;
 use super::iteration::IterationMatrix;
 use super::tableau::RosenbrockTableau;
+use crate::endpoints::Endpoints;
 use crate::jacobian::time_derivative;
 use crate::method::Method;
 use crate::norm::ErrorNorm;
@@ -46,14 +46,10 @@ pub struct Rosenbrock {
     m_err: Vec<f64>,
     same_point: Vec<bool>,
     n: usize,
-    t: f64,
-    y: Vec<f64>,
+    /// The end points of the last step; the slopes there are `f_prev` and `f0`.
+    ends: Endpoints,
     f0: Vec<f64>,
-    have_f0: bool,
-    t_prev: f64,
-    y_prev: Vec<f64>,
     f_prev: Vec<f64>,
-    h_last: f64,
     h: f64,
     u: Vec<Vec<f64>>,
     ft: Vec<f64>,
@@ -126,14 +122,9 @@ impl Rosenbrock {
             m_err,
             same_point,
             n,
-            t: 0.0,
-            y: vec![0.0; n],
+            ends: Endpoints::new(n),
             f0: vec![0.0; n],
-            have_f0: false,
-            t_prev: 0.0,
-            y_prev: vec![0.0; n],
             f_prev: vec![0.0; n],
-            h_last: 0.0,
             h: 0.0,
             u: vec![vec![0.0; n]; s],
             ft: vec![0.0; n],
@@ -165,64 +156,35 @@ impl SchemeState for Rosenbrock {
         true
     }
     fn t(&self) -> f64 {
-        self.t
+        self.ends.t
     }
     fn y(&self) -> &[f64] {
-        &self.y
+        &self.ends.y
     }
     fn dydt(&self) -> Option<&[f64]> {
-        self.have_f0.then_some(&self.f0[..])
+        self.ends.dydt(&self.f0)
     }
     fn t_prev(&self) -> f64 {
-        self.t_prev
+        self.ends.t_prev
     }
     fn interpolate(&self, t: f64, out: &mut [f64]) {
-        if self.h_last == 0.0 {
-            out.copy_from_slice(&self.y);
-            return;
-        }
-        let th = (t - self.t_prev) / self.h_last;
-        hermite::eval(
-            &self.y_prev,
-            &self.y,
-            &self.f_prev,
-            &self.f0,
-            self.h_last,
-            th,
-            out,
-        );
+        self.ends.hermite(t, &self.f_prev, &self.f0, out);
     }
     fn dense_degree(&self) -> usize {
         3
     }
     fn dense_coefficients(&self, coeffs: &mut [f64]) {
-        hermite::coefficients(
-            &self.y_prev,
-            &self.y,
-            &self.f_prev,
-            &self.f0,
-            self.h_last,
-            coeffs,
-        );
+        self.ends
+            .hermite_coefficients(&self.f_prev, &self.f0, coeffs);
     }
 }
 
 impl<S: System> Scheme<S> for Rosenbrock {
     fn start(&mut self, p: &mut Problem<S>, t: f64, y: &[f64]) -> Result<(), StepFailure> {
-        self.t = t;
-        self.t_prev = t;
-        self.y.copy_from_slice(y);
-        self.y_prev.copy_from_slice(y);
-        self.h_last = 0.0;
         self.iter.restart();
-        p.rhs(t, &self.y, &mut self.f0);
+        let started = self.ends.start(p, t, y, &mut self.f0);
         self.f_prev.copy_from_slice(&self.f0);
-        self.have_f0 = self.f0.iter().all(|v| v.is_finite());
-        if self.have_f0 {
-            Ok(())
-        } else {
-            Err(StepFailure::NonFinite)
-        }
+        started
     }
 
     fn attempt(
@@ -233,14 +195,12 @@ impl<S: System> Scheme<S> for Rosenbrock {
     ) -> Result<Attempt, StepFailure> {
         let tab = self.tab;
         let (n, s, g) = (self.n, tab.stages(), tab.gamma);
-        if !self.have_f0 {
-            p.rhs(self.t, &self.y, &mut self.f0);
-            self.have_f0 = true;
-        }
+        self.ends.ensure_f(p, &mut self.f0);
         self.h = h;
+        let (t, y) = (self.ends.t, &self.ends.y);
         if !self.iter.is_fresh() {
-            self.iter.evaluate(p, self.t, &self.y, &self.f0)?;
-            time_derivative(p, self.t, &self.y, &self.f0, &mut self.ft);
+            self.iter.evaluate(p, t, y, &self.f0)?;
+            time_derivative(p, t, y, &self.f0, &mut self.ft);
         }
         self.iter.drop_factorisation();
         self.iter
@@ -249,7 +209,7 @@ impl<S: System> Scheme<S> for Rosenbrock {
             if i == 0 {
                 self.fy.copy_from_slice(&self.f0);
             } else if !self.same_point[i] {
-                self.ys.copy_from_slice(&self.y);
+                self.ys.copy_from_slice(y);
                 for j in 0..i {
                     let aij = self.a[i][j];
                     if aij != 0.0 {
@@ -258,7 +218,7 @@ impl<S: System> Scheme<S> for Rosenbrock {
                         }
                     }
                 }
-                p.rhs(self.t + tab.alpha_sum[i] * h, &self.ys, &mut self.fy);
+                p.rhs(t + tab.alpha_sum[i] * h, &self.ys, &mut self.fy);
             }
             let gh = tab.gamma_sum[i] * h;
             let (done, rest) = self.u.split_at_mut(i);
@@ -276,7 +236,7 @@ impl<S: System> Scheme<S> for Rosenbrock {
             }
             self.iter.solve_real(p, ui);
         }
-        self.y_new.copy_from_slice(&self.y);
+        self.y_new.copy_from_slice(y);
         self.err.fill(0.0);
         for i in 0..s {
             let (mi, ei) = (self.m[i], self.m_err[i]);
@@ -292,7 +252,7 @@ impl<S: System> Scheme<S> for Rosenbrock {
             *v *= scale;
         }
         self.iter.solve_real(p, &mut self.err);
-        let error = norm.rms(&self.err, &self.y, &self.y_new);
+        let error = norm.rms(&self.err, y, &self.y_new);
         if error.is_finite() {
             Ok(Attempt::with_error(error))
         } else {
@@ -301,14 +261,9 @@ impl<S: System> Scheme<S> for Rosenbrock {
     }
 
     fn accept(&mut self, p: &mut Problem<S>) {
-        self.t_prev = self.t;
-        self.t += self.h;
-        self.h_last = self.h;
-        std::mem::swap(&mut self.y_prev, &mut self.y);
-        std::mem::swap(&mut self.y, &mut self.y_new);
+        self.ends.advance(self.h, &mut self.y_new);
         std::mem::swap(&mut self.f_prev, &mut self.f0);
-        p.rhs(self.t, &self.y, &mut self.f0);
-        self.have_f0 = true;
+        p.rhs(self.ends.t, &self.ends.y, &mut self.f0);
         self.iter.after_accept(0.0);
     }
 
