@@ -19,7 +19,7 @@ use ballast::{Complex64, Method};
 fn interval(x: Option<f64>) -> String {
     match x {
         None => "unbounded".to_string(),
-        Some(v) if v == 0.0 => "0".to_string(),
+        Some(0.0) => "0".to_string(),
         Some(v) => format!("{v:.4}"),
     }
 }

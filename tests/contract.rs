@@ -70,7 +70,7 @@ fn design_contract_snippet() -> Result<(), ballast::Error> {
     let est = ballast::stiffness::spectral_radius(
         n,
         |v: &[f64], out: &mut [f64]| {
-            out[0] = -1.0 * v[0];
+            out[0] = -v[0];
             out[1] = -10.0 * v[1];
             out[2] = -100.0 * v[2];
         },

@@ -277,9 +277,7 @@ impl<S: System> Switcher<S> {
         cfg: &ControlConfig,
         stats: &mut ControlStats,
     ) -> Option<f64> {
-        let Some(m) = self.monitor.as_mut() else {
-            return None;
-        };
+        let m = self.monitor.as_mut()?;
         // Cost of the step just taken.
         let rhs_now = p.counters.rhs_evals;
         let meter = if active.is_implicit() {
