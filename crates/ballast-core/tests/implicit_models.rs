@@ -26,6 +26,7 @@ fn opts(jacobian: JacobianSource, structure: Option<Structure>) -> SchemeOptions
             structure,
             ..Default::default()
         },
+        ..Default::default()
     }
 }
 

@@ -33,6 +33,7 @@ fn scheme_for(m: crate::method::Method) -> Box<dyn Scheme<Rhs>> {
             max_newton_iters: 25,
             ..Default::default()
         },
+        ..Default::default()
     };
     crate::build::build(m, 2, &Structure::Dense, &opts).unwrap()
 }
