@@ -1,4 +1,5 @@
-//! Unit tests of the multistep schemes on closed-form problems.
+//! Unit tests of the multistep schemes on closed-form problems (the
+//! convergence orders are measured in `tests/multistep/convergence.rs`).
 
 use super::coefficients::{factorial, Coefficients, Family};
 use super::{Adams, Bdf};
@@ -58,45 +59,6 @@ fn adams_local_error_on_a_polynomial_is_the_error_constant() {
                 );
             }
         }
-    }
-}
-
-#[test]
-fn adams_converges_at_its_order_with_a_fixed_step_and_order() {
-    // y1' = -y2, y2' = y1, y = (cos t, sin t) (closed form), exact start-up
-    // history; observed order log2(err(h)/err(h/2)) at fixed order q.
-    for q in [1usize, 2, 4, 6, 8] {
-        let mut errs = [0.0; 2];
-        for (k, h) in [0.1f64, 0.05].into_iter().enumerate() {
-            let rhs = |_t: f64, y: &[f64], dy: &mut [f64]| {
-                dy[0] = -y[1];
-                dy[1] = y[0];
-            };
-            let mut p = Problem::new(rhs, 2);
-            let mut cols = vec![0.0; (q + 1) * 2];
-            for j in 0..=q {
-                // d^j/dt^j (cos, sin) at 0 = (cos(j pi/2), sin(j pi/2)).
-                let s = h.powi(j as i32) / factorial(j);
-                let phase = j as f64 * std::f64::consts::FRAC_PI_2;
-                cols[2 * j] = s * phase.cos();
-                cols[2 * j + 1] = s * phase.sin();
-            }
-            let mut a = Adams::new(2).with_fixed_order(q);
-            a.start_with_history(&mut p, 0.0, q, h, &cols).unwrap();
-            let norm = ErrorNorm::new(1e-6, Atol::Scalar(1e-6), 2);
-            let steps = (2.0 / h).round() as usize;
-            for _ in 0..steps {
-                a.attempt(&mut p, h, &norm).unwrap();
-                a.accept(&mut p);
-            }
-            let t = a.t();
-            errs[k] = ((a.y()[0] - t.cos()).powi(2) + (a.y()[1] - t.sin()).powi(2)).sqrt();
-        }
-        let observed = (errs[0] / errs[1]).log2();
-        assert!(
-            (observed - q as f64).abs() < 0.3,
-            "q={q}: {observed} {errs:?}"
-        );
     }
 }
 
@@ -179,41 +141,6 @@ fn bdf_local_error_on_a_polynomial_is_the_error_constant() {
         assert!(
             (at.error * w - want.abs()).abs() <= 1e-6 * want.abs(),
             "q={q}"
-        );
-    }
-}
-
-#[test]
-fn bdf_converges_at_its_order_with_a_fixed_step_and_order() {
-    // Prothero–Robinson y' = lambda (y - sin t) + cos t, y = sin t
-    // (Prothero and Robinson 1974; closed form), lambda = -10, exact
-    // start-up derivatives of sin t.
-    for q in 1..=5 {
-        let mut errs = [0.0; 2];
-        for (k, h) in [0.04f64, 0.02].into_iter().enumerate() {
-            let rhs =
-                |t: f64, y: &[f64], dy: &mut [f64]| dy[0] = -10.0 * (y[0] - t.sin()) + t.cos();
-            let mut p = Problem::new(rhs, 1);
-            let cols: Vec<f64> = (0..=q)
-                .map(|j| {
-                    h.powi(j as i32) / factorial(j) * (j as f64 * std::f64::consts::FRAC_PI_2).sin()
-                })
-                .collect();
-            let mut b = Bdf::new(1, &Structure::Dense, &ImplicitOptions::default())
-                .unwrap()
-                .with_fixed_order(q);
-            b.start_with_history(&mut p, 0.0, q, h, &cols).unwrap();
-            let norm = ErrorNorm::new(1e-10, Atol::Scalar(1e-10), 1);
-            for _ in 0..(2.0 / h).round() as usize {
-                b.attempt(&mut p, h, &norm).unwrap();
-                b.accept(&mut p);
-            }
-            errs[k] = (b.y()[0] - b.t().sin()).abs();
-        }
-        let observed = (errs[0] / errs[1]).log2();
-        assert!(
-            (observed - q as f64).abs() < 0.3,
-            "q={q}: {observed} {errs:?}"
         );
     }
 }
