@@ -4,4 +4,5 @@
 //! - [`regions`]: the stability region of every method, one panel per family.
 
 pub mod regions;
+mod style;
 pub mod work_precision;

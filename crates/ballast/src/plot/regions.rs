@@ -22,6 +22,8 @@ use ballast_core::Method;
 use num_complex::Complex64;
 use plotters::prelude::*;
 
+use super::style::{self, failure, Look, COLOURS, FONT};
+
 /// Why the picture could not be drawn or written.
 #[derive(Debug, thiserror::Error)]
 #[non_exhaustive]
@@ -39,27 +41,23 @@ pub enum PlotError {
     },
 }
 
-fn draw_err<E: std::fmt::Debug>(e: E) -> PlotError {
-    PlotError::Draw(format!("{e:?}"))
-}
-
 /// Picture size in pixels (three panels across, two down).
 const SIZE: (u32, u32) = (1560, 1080);
 /// Grid cells per axis for sampling each region.
 const GRID: usize = 240;
 
-/// Okabe–Ito palette (distinct for readers with colour-vision
-/// deficiencies; common practice), then two extra tones.
-const COLOURS: [RGBColor; 8] = [
-    RGBColor(0, 114, 178),
-    RGBColor(213, 94, 0),
-    RGBColor(0, 158, 115),
-    RGBColor(204, 121, 167),
-    RGBColor(230, 159, 0),
-    RGBColor(86, 180, 233),
-    RGBColor(0, 0, 0),
-    RGBColor(170, 60, 60),
-];
+/// Frame and text of one panel.
+const PANEL: Look = Look {
+    caption: 20,
+    margin: 12,
+    label_areas: (40, 50),
+    axis_desc: 14,
+    labels: 12,
+    grid: RGBColor(238, 238, 238),
+    legend: SeriesLabelPosition::UpperLeft,
+    legend_font: 12,
+    legend_background: 0.85,
+};
 
 /// One panel: a title, the window in the complex plane, the regions.
 struct Panel {
@@ -257,23 +255,12 @@ impl Sampled {
 fn draw_panel<DB: DrawingBackend>(
     area: &DrawingArea<DB, plotters::coord::Shift>,
     panel: &Panel,
-) -> Result<(), PlotError> {
-    let mut chart = ChartBuilder::on(area)
-        .caption(panel.title, ("sans-serif", 20))
-        .margin(12)
-        .x_label_area_size(40)
-        .y_label_area_size(50)
-        .build_cartesian_2d(panel.re.0..panel.re.1, panel.im.0..panel.im.1)
-        .map_err(draw_err)?;
-    chart
-        .configure_mesh()
-        .x_desc("Re z")
-        .y_desc("Im z")
-        .axis_desc_style(("sans-serif", 14))
-        .label_style(("sans-serif", 12))
-        .light_line_style(RGBColor(238, 238, 238))
+) -> Result<(), String> {
+    let (re, im) = (panel.re.0..panel.re.1, panel.im.0..panel.im.1);
+    let mut chart = style::chart(area, &PANEL, panel.title, re, im)?;
+    style::mesh(&mut chart, &PANEL, "Re z", "Im z")
         .draw()
-        .map_err(draw_err)?;
+        .map_err(failure)?;
     // The axes of the complex plane.
     let axis = BLACK.mix(0.6).stroke_width(1);
     chart
@@ -281,7 +268,7 @@ fn draw_panel<DB: DrawingBackend>(
             PathElement::new(vec![(panel.re.0, 0.0), (panel.re.1, 0.0)], axis),
             PathElement::new(vec![(0.0, panel.im.0), (0.0, panel.im.1)], axis),
         ])
-        .map_err(draw_err)?;
+        .map_err(failure)?;
     for (k, key) in panel.keys.iter().enumerate() {
         let Some(region) = stability::region(*key) else {
             continue;
@@ -296,7 +283,7 @@ fn draw_panel<DB: DrawingBackend>(
                     .into_iter()
                     .map(|r| Rectangle::new(r, fill)),
             )
-            .map_err(draw_err)?;
+            .map_err(failure)?;
         let line = colour.stroke_width(2);
         chart
             .draw_series(
@@ -305,38 +292,27 @@ fn draw_panel<DB: DrawingBackend>(
                     .into_iter()
                     .map(|c| PathElement::new(c, line)),
             )
-            .map_err(draw_err)?
+            .map_err(failure)?
             .label(region.name().to_string())
             .legend(move |(x, y)| {
                 Rectangle::new([(x, y - 5), (x + 18, y + 5)], colour.mix(0.5).filled())
             });
     }
-    chart
-        .configure_series_labels()
-        .position(SeriesLabelPosition::UpperLeft)
-        .background_style(WHITE.mix(0.85))
-        .border_style(BLACK)
-        .label_font(("sans-serif", 12))
-        .draw()
-        .map_err(draw_err)?;
-    Ok(())
+    style::legend(&mut chart, &PANEL)
 }
 
 /// The picture of every method's stability region as an SVG document.
 pub fn stability_regions_svg_string() -> Result<String, PlotError> {
-    let mut svg = String::new();
-    {
-        let root = SVGBackend::with_string(&mut svg, SIZE).into_drawing_area();
-        root.fill(&WHITE).map_err(draw_err)?;
-        let root = root
-            .titled("Stability regions: shaded where the method is stable for y' = lambda y, z = h lambda", ("sans-serif", 24))
-            .map_err(draw_err)?;
+    style::svg_document(SIZE, |root| {
+        let title =
+            "Stability regions: shaded where the method is stable for y' = lambda y, z = h lambda";
+        let root = root.titled(title, (FONT, 24)).map_err(failure)?;
         for (area, panel) in root.split_evenly((2, 3)).iter().zip(panels()) {
             draw_panel(area, &panel)?;
         }
-        root.present().map_err(draw_err)?;
-    }
-    Ok(svg)
+        Ok(())
+    })
+    .map_err(PlotError::Draw)
 }
 
 /// Writes [`stability_regions_svg_string`] to `path`.

@@ -27,6 +27,7 @@ use std::path::Path;
 
 use plotters::prelude::*;
 
+use super::style::{self, failure, Look, COLOURS};
 use crate::compare::Report;
 
 /// Why the picture could not be drawn or written.
@@ -52,20 +53,18 @@ const SIZE: (u32, u32) = (960, 640);
 /// Smallest error drawn: an exact result is shown at this level.
 const ERROR_FLOOR_SHOWN: f64 = 1e-17;
 
-/// Line colours (the Okabe–Ito palette, chosen to stay distinct for
-/// readers with colour-vision deficiencies; common practice), then greys.
-const COLOURS: [RGBColor; 10] = [
-    RGBColor(0, 114, 178),
-    RGBColor(213, 94, 0),
-    RGBColor(0, 158, 115),
-    RGBColor(204, 121, 167),
-    RGBColor(230, 159, 0),
-    RGBColor(86, 180, 233),
-    RGBColor(0, 0, 0),
-    RGBColor(240, 228, 66),
-    RGBColor(120, 120, 120),
-    RGBColor(170, 60, 60),
-];
+/// Frame and text of the chart.
+const LOOK: Look = Look {
+    caption: 24,
+    margin: 20,
+    label_areas: (60, 80),
+    axis_desc: 16,
+    labels: 13,
+    grid: RGBColor(235, 235, 235),
+    legend: SeriesLabelPosition::UpperRight,
+    legend_font: 14,
+    legend_background: 0.9,
+};
 
 /// One contender's points `(seconds, error)`, from the loosest tolerance
 /// to the tightest.
@@ -111,28 +110,16 @@ fn log_range(values: impl Iterator<Item = f64>, fallback: (f64, f64)) -> (f64, f
     (lo / pad, hi * pad)
 }
 
-fn draw_err<E: std::fmt::Debug>(e: E) -> WorkPrecisionError {
-    WorkPrecisionError::Draw(format!("{e:?}"))
-}
-
 /// The work–precision picture of `report` as an SVG document.
 pub fn work_precision_svg(report: &Report) -> Result<String, WorkPrecisionError> {
     let lines = lines(report);
     let all = || lines.iter().flat_map(|l| l.points.iter());
     let x = log_range(all().map(|p| p.0), (1e-4, 1.0));
     let y = log_range(all().map(|p| p.1), (1e-12, 1.0));
-    let mut svg = String::new();
-    {
-        let root = SVGBackend::with_string(&mut svg, SIZE).into_drawing_area();
-        root.fill(&WHITE).map_err(draw_err)?;
+    style::svg_document(SIZE, |root| {
         let title = format!("{}: work-precision", report.model());
-        let mut chart = ChartBuilder::on(&root)
-            .caption(title, ("sans-serif", 24))
-            .margin(20)
-            .x_label_area_size(60)
-            .y_label_area_size(80)
-            .build_cartesian_2d((x.0..x.1).log_scale(), (y.0..y.1).log_scale())
-            .map_err(draw_err)?;
+        let (x, y) = ((x.0..x.1).log_scale(), (y.0..y.1).log_scale());
+        let mut chart = style::chart(root, &LOOK, title, x, y)?;
         let x_desc = format!(
             "wall time [s] (median of {} run(s), log scale)",
             report.repeats()
@@ -142,17 +129,11 @@ pub fn work_precision_svg(report: &Report) -> Result<String, WorkPrecisionError>
             report.reference().t,
             report.error_floor()
         );
-        chart
-            .configure_mesh()
-            .x_desc(x_desc)
-            .y_desc(y_desc)
-            .axis_desc_style(("sans-serif", 16))
-            .label_style(("sans-serif", 13))
+        style::mesh(&mut chart, &LOOK, x_desc, y_desc)
             .x_label_formatter(&|v| format!("{v:.0e}"))
             .y_label_formatter(&|v| format!("{v:.0e}"))
-            .light_line_style(RGBColor(235, 235, 235))
             .draw()
-            .map_err(draw_err)?;
+            .map_err(failure)?;
         for (i, line) in lines.iter().enumerate() {
             let colour = COLOURS[i % COLOURS.len()];
             let style = colour.stroke_width(2);
@@ -163,7 +144,7 @@ pub fn work_precision_svg(report: &Report) -> Result<String, WorkPrecisionError>
             };
             chart
                 .draw_series(LineSeries::new(line.points.iter().copied(), style))
-                .map_err(draw_err)?
+                .map_err(failure)?
                 .label(label)
                 .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 24, y)], style));
             let pts = line.points.iter().copied();
@@ -172,19 +153,11 @@ pub fn work_precision_svg(report: &Report) -> Result<String, WorkPrecisionError>
                 1 => chart.draw_series(pts.map(|p| TriangleMarker::new(p, 5, colour.filled()))),
                 _ => chart.draw_series(pts.map(|p| Cross::new(p, 4, colour.stroke_width(2)))),
             }
-            .map_err(draw_err)?;
+            .map_err(failure)?;
         }
-        chart
-            .configure_series_labels()
-            .position(SeriesLabelPosition::UpperRight)
-            .background_style(WHITE.mix(0.9))
-            .border_style(BLACK)
-            .label_font(("sans-serif", 14))
-            .draw()
-            .map_err(draw_err)?;
-        root.present().map_err(draw_err)?;
-    }
-    Ok(svg)
+        style::legend(&mut chart, &LOOK)
+    })
+    .map_err(WorkPrecisionError::Draw)
 }
 
 /// Writes [`work_precision_svg`] to `path`.
