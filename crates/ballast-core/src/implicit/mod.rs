@@ -17,7 +17,12 @@
 //! let norm = ErrorNorm::new(1e-6, Atol::Scalar(1e-9), 1);
 //! let _ = s.attempt(&mut p, 0.5, &norm).unwrap();
 //! s.accept(&mut p);
-//! assert!((s.y()[0] - 1.0).abs() < 1e-6); // L-stable: the transient is gone
+//! // On a linear problem one step multiplies the transient y - 1 by the
+//! // stability function: y1 - 1 = R(-500) (0 - 1), damped since |R| < 1.
+//! let r = ballast_core::stability::method_region(ballast_core::Method::Esdirk43)
+//!     .unwrap().function().eval(num_complex::Complex64::new(-500.0, 0.0)).unwrap().re;
+//! assert!(r.abs() < 1.0);
+//! assert!((s.y()[0] - 1.0 + r).abs() < 1e-6);
 //! ```
 pub mod dirk;
 pub mod hermite;
