@@ -36,21 +36,38 @@ fn run(name: &str, method: Method, rtol: f64, atol_scale: f64) -> (Outcome, f64,
     (out, weighted, relative)
 }
 
-/// `(case, atol / rtol, bound on the weighted error)`. A global error is a
-/// sum of local errors carried along by the problem, so it exceeds the
-/// tolerance by a factor that depends on the problem (its error
-/// amplification) and on the method (Adams and BDF control the error of
-/// the propagated order, without local extrapolation): the bounds are
-/// these factors as measured, with a margin of about 3. The test checks
-/// them at two tolerances three decades apart and that the error falls by
-/// at least a factor 30 between them.
-const ADAMS_CASES: [(&str, f64, f64); 2] = [("kepler", 1.0, 3e3), ("arenstorf", 1.0, 1.5e5)];
+// References: the registry's, from tools/reference/models.py (mpmath at
+// 40 digits at two tolerances, checked by SciPy's DOP853/Radau/BDF; the
+// Kepler case by its closed form through Kepler's equation). Problems as
+// published: Arenstorf and Pleiades (HNW I, II.0 and II.10), Robertson
+// to 1e11, HIRES, Van der Pol with eps = 1e-6 and the Brusselator (HW II,
+// IV.1-IV.10; Bari test set, Mazzia and Magherini).
+//
+// `(case, atol / rtol, bound on the weighted error)`. A global error is a
+// sum of local errors carried along by the problem, so it exceeds the
+// tolerance by a factor that depends on the problem (its error
+// amplification) and on the method (Adams and BDF control the error of
+// the propagated order, without local extrapolation): the bounds are
+// these factors as measured, with a margin of about 3. The test checks
+// them at two tolerances three decades apart and that the error falls by
+// at least a factor 30 between them.
+//
+/// Measured at rtol 1e-6 and 1e-9: Kepler ~6e2, Pleiades ~1.4e3; the
+/// Arenstorf orbit, which passes close to the moon, amplifies errors
+/// most: ~5e3 to ~9e4.
+const ADAMS_CASES: [(&str, f64, f64); 3] = [
+    ("kepler", 1.0, 2e3),
+    ("arenstorf", 1.0, 3e5),
+    ("pleiades", 1.0, 5e3),
+];
 const TABLE_NONSTIFF: [(&str, f64, f64); 2] = [("arenstorf", 1.0, 0.0), ("pleiades", 1.0, 0.0)];
+/// Measured at rtol 1e-6 and 1e-9: 1.7 to 29 (stiff problems damp the
+/// propagated errors).
 const BDF_CASES: [(&str, f64, f64); 4] = [
-    ("robertson-long", 1e-6, 1e3),
-    ("hires", 1e-4, 1e3),
-    ("vanderpol", 1.0, 1e3),
-    ("brusselator", 1.0, 1e3),
+    ("robertson-long", 1e-6, 30.0),
+    ("hires", 1e-4, 100.0),
+    ("vanderpol", 1.0, 60.0),
+    ("brusselator", 1.0, 80.0),
 ];
 
 fn follows_the_tolerance(method: Method, cases: &[(&str, f64, f64)]) {
@@ -71,6 +88,11 @@ fn follows_the_tolerance(method: Method, cases: &[(&str, f64, f64)]) {
 #[test]
 fn adams_error_follows_the_tolerance_on_nonstiff_problems() {
     follows_the_tolerance(Method::Adams, &ADAMS_CASES);
+}
+
+#[test]
+fn bdf_error_follows_the_tolerance_on_stiff_problems() {
+    follows_the_tolerance(Method::Bdf, &BDF_CASES);
 }
 
 #[test]

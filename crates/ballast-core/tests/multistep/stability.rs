@@ -72,4 +72,3 @@ fn bdf_is_stable_inside_the_a_alpha_sector_of_its_order() {
         assert!(m < 1e-6, "BDF{q}: |y| = {m}");
     }
 }
-
