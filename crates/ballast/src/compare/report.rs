@@ -41,8 +41,11 @@ impl Row {
 /// How [`Report::winners`] chooses the best run at a tolerance.
 ///
 /// A run qualifies when its achieved error is at most `slack * rtol`; the
-/// fastest qualifying run wins. When no run qualifies, the most accurate
-/// run wins; without a reference, the fastest successful run.
+/// fastest qualifying run wins. When no run qualifies (global errors can
+/// exceed the local tolerance by far on long spans), a run qualifies when
+/// its error is at most `slack` times the smallest error reached at that
+/// tolerance, and the fastest of those wins. Without a reference, the
+/// fastest successful run wins.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct WinnerRule {
     /// How far above `rtol` the achieved (global) error may lie (default 10:
@@ -62,8 +65,9 @@ impl Default for WinnerRule {
 pub enum WinnerBasis {
     /// Fastest among the runs whose error met `slack * rtol`.
     MetTolerance,
-    /// No run met `slack * rtol`; this one was the most accurate.
-    MostAccurate,
+    /// No run met `slack * rtol`; fastest among the runs within `slack`
+    /// of the smallest error reached.
+    NearBest,
     /// No reference was available; fastest successful run.
     Fastest,
 }
@@ -99,7 +103,7 @@ impl std::fmt::Display for Winner {
         }
         f.write_str(match self.basis {
             WinnerBasis::MetTolerance => ")",
-            WinnerBasis::MostAccurate => "; no run met the tolerance, most accurate)",
+            WinnerBasis::NearBest => "; no run met the tolerance: fastest near the best error)",
             WinnerBasis::Fastest => "; no reference, fastest)",
         })
     }
@@ -244,13 +248,19 @@ impl Report {
                 .collect();
             match fastest(&met) {
                 Some(r) => (r, WinnerBasis::MetTolerance),
-                None => (
-                    ok.iter()
+                None => {
+                    let best = ok
+                        .iter()
+                        .filter_map(|r| r.error)
+                        .filter(|e| e.is_finite())
+                        .fold(f64::INFINITY, f64::min);
+                    let near: Vec<&Row> = ok
+                        .iter()
                         .copied()
-                        .filter(|r| r.error.is_some_and(f64::is_finite))
-                        .min_by(|a, b| a.error.unwrap_or(0.0).total_cmp(&b.error.unwrap_or(0.0)))?,
-                    WinnerBasis::MostAccurate,
-                ),
+                        .filter(|r| r.error.is_some_and(|e| e <= self.rule.slack * best))
+                        .collect();
+                    (fastest(&near)?, WinnerBasis::NearBest)
+                }
             }
         };
         Some(Winner {

@@ -275,6 +275,71 @@ fn bad_studies_are_refused() {
     assert_eq!(study().repeats(0).run().unwrap_err(), StudyError::NoRepeats);
 }
 
+/// A row with only what the winner rule reads (the rule is pure selection
+/// logic, so made-up figures are the right test input here).
+fn row(label: &str, method: Method, error: f64, seconds: f64) -> Row {
+    Row {
+        label: label.into(),
+        method,
+        rtol: 1e-6,
+        atol: 1e-9,
+        error: Some(error),
+        seconds,
+        stats: crate::Stats {
+            rhs_evals: (seconds * 1e6) as usize,
+            ..Default::default()
+        },
+        t_reached: 1.0,
+        failure: None,
+        timed_runs: 1,
+    }
+}
+
+fn synthetic(rows: Vec<Row>) -> Report {
+    Report {
+        model: "selection".into(),
+        dim: 1,
+        span: (0.0, 1.0),
+        reference: ReferenceInfo {
+            t: 1.0,
+            y: Some(vec![0.0]),
+            source: "made up for the selection rule".into(),
+        },
+        error_floor: 1e-9,
+        repeats: 1,
+        rule: WinnerRule::default(),
+        rows,
+    }
+}
+
+#[test]
+fn the_winner_is_the_fastest_adequate_run() {
+    // Two runs meet 10 x rtol = 1e-5: the faster of them wins, not the
+    // fastest overall (which is far less accurate).
+    let r = synthetic(vec![
+        row("sloppy", Method::DormandPrince54, 1e-3, 0.001),
+        row("slow", Method::RadauIIA5, 1e-7, 0.009),
+        row("good", Method::Bdf, 5e-6, 0.004),
+        row("switch", Method::default(), 2e-6, 0.006),
+    ]);
+    let w = &r.winners()[0];
+    assert_eq!(
+        (w.label.as_str(), w.basis),
+        ("good", WinnerBasis::MetTolerance)
+    );
+    let c = r.cost_ratio("switch", 1e-6).unwrap();
+    assert_eq!(c.against, "good");
+    assert!((c.seconds - 1.5).abs() < 1e-12 && (c.rhs - 1.5).abs() < 1e-12);
+    // No run meets 1e-5: the fastest within 10 x the best error (1e-4) wins.
+    let r = synthetic(vec![
+        row("a", Method::DormandPrince54, 5e-4, 0.001),
+        row("b", Method::Tsitouras54, 1e-4, 0.003),
+        row("c", Method::Adams, 5e-3, 0.0005),
+    ]);
+    let w = &r.winners()[0];
+    assert_eq!((w.label.as_str(), w.basis), ("a", WinnerBasis::NearBest));
+}
+
 #[cfg(feature = "plot")]
 #[test]
 fn the_picture_has_axes_a_legend_and_a_line_per_method() {
