@@ -65,11 +65,17 @@ proptest! {
             prop_assert_eq!(ev.uses_analytic(), Some(false));
             prop_assert_eq!(p.counters.jacobian_rhs_evals, calls);
             prop_assert_eq!(p.counters.rhs_evals, calls);
+            let f_max = f0.iter().fold(1.0f64, |m, v| m.max(v.abs()));
             for i in 0..n {
                 for j in 0..n {
                     let e = exact.get(i, j);
-                    let scale = 1.0 + e.abs() + 3.0 * a[i] * y[i].abs().max(1.0);
-                    prop_assert!((jac.get(i, j) - e).abs() < 1e-6 * scale, "({},{}) {} vs {}", i, j, jac.get(i, j), e);
+                    // Forward-difference error with increment d_j: truncation
+                    // |f''| d_j / 2 plus rounding ~ eps |f| / d_j (common practice).
+                    let d = f64::EPSILON.sqrt() * y[j].abs().max(FD_FLOOR);
+                    let truncation = (6.0 * a[i] * (y[i].abs() + d) + 2.0) * d;
+                    let rounding = 8.0 * f64::EPSILON * f_max / d;
+                    let bound = 1e-6 * (1.0 + e.abs()) + truncation + rounding;
+                    prop_assert!((jac.get(i, j) - e).abs() < bound, "({},{}) {} vs {}", i, j, jac.get(i, j), e);
                 }
             }
         }
