@@ -60,6 +60,8 @@ pub(crate) struct Monitor {
     rejections: usize,
     /// Current multiple of the configured estimate interval.
     stretch: usize,
+    /// Real-axis reach of the region in use (0 when unknown).
+    reach: f64,
     /// Seconds per right-hand-side call, measured during estimates.
     pub(crate) seconds_per_rhs: Option<f64>,
 }
@@ -78,6 +80,7 @@ impl Monitor {
             stage_ref: None,
             rejections: 0,
             stretch: 1,
+            reach: 0.0,
             seconds_per_rhs: None,
         }
     }
@@ -97,10 +100,22 @@ impl Monitor {
         if self.steps_since % STAGE_CHECK_EVERY != 0 {
             return false;
         }
+        // A change of the stage estimate by the trigger fraction calls for a
+        // full estimate when the old or the new value matters for the step
+        // (reaches a noticeable fraction of the region along the real axis).
+        let h = (scheme.t() - scheme.t_prev()).abs();
         match (scheme.stage_spectral_estimate(), self.stage_ref) {
-            (Some(s), Some(r)) if r > 0.0 => (s - r).abs() > th.stage_change_trigger * r,
+            (Some(s), Some(r)) if r > 0.0 => {
+                (s - r).abs() > th.stage_change_trigger * r
+                    && s.max(r) * h >= FAR_FRACTION * self.reach
+            }
             _ => false,
         }
+    }
+
+    /// Records the real-axis reach of the explicit region in use.
+    pub(crate) fn set_reach(&mut self, reach: f64) {
+        self.reach = reach;
     }
 
     /// Adapts the estimate interval to how far inside the region the
@@ -120,6 +135,11 @@ impl Monitor {
 
     pub(crate) fn note_reject(&mut self) {
         self.rejections += 1;
+    }
+
+    /// Back to the configured interval (after a switch or a capped step).
+    pub(crate) fn watch_closely(&mut self) {
+        self.stretch = 1;
     }
 
     /// Runs the power iteration at the scheme's current state.

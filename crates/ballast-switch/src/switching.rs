@@ -254,6 +254,9 @@ impl<S: System> Switcher<S> {
             return;
         };
         let real = region.summary().real_interval.unwrap_or(f64::INFINITY);
+        if let Some(m) = self.monitor.as_mut() {
+            m.set_reach(if real.is_finite() { real } else { 0.0 });
+        }
         if h * s.rho < GRAZING_FRACTION * real {
             return;
         }
@@ -292,6 +295,9 @@ impl<S: System> Switcher<S> {
             meter.timed += 1;
         }
         m.note_accept();
+        if report.capped {
+            m.watch_closely();
+        }
         self.since_switch += 1;
         if m.due(active.as_ref(), &cfg.switching) {
             m.estimate(p, active.as_ref(), stats);
@@ -458,6 +464,9 @@ impl<S: System> Switcher<S> {
             rho,
         });
         stats.switches += 1;
+        if let Some(m) = self.monitor.as_mut() {
+            m.watch_closely();
+        }
         self.since_switch = 0;
         self.capped_run = 0;
         self.fitting_run = 0;

@@ -11,6 +11,12 @@ use ballast_core::{Jacobian, Structure, System};
 /// SIMD lanes, so the check costs a small fraction of any right-hand side
 /// that writes the same values.
 pub(crate) fn all_finite(v: &[f64]) -> bool {
+    // Short vectors (the common case of a cheap right-hand side): a plain
+    // test costs a few instructions. Long ones: branch-free lanes (x * 0 is
+    // 0 for finite x and NaN otherwise), which vectorise.
+    if v.len() < 16 {
+        return v.iter().all(|x| x.is_finite());
+    }
     let mut acc = [0.0f64; 8];
     let chunks = v.chunks_exact(8);
     let rest = chunks.remainder();
