@@ -22,13 +22,23 @@ mod lineup;
 /// The two tolerances (`atol = 1e-3 rtol`, as in the example).
 const RTOLS: [f64; 2] = [1e-5, 1e-8];
 
+/// Largest model on which the dense-Jacobian variants are timed: on the
+/// 1000-equation Brusselator a dense run takes seconds (the `compare`
+/// example measures it; ten criterion samples of it would take minutes).
+const DENSE_VARIANTS_UP_TO: usize = 200;
+
 fn models(c: &mut Criterion) {
     for case in ballast_models::all() {
         let mut g = c.benchmark_group(format!("models/{}", case.name));
         g.sample_size(10)
             .warm_up_time(Duration::from_millis(200))
             .measurement_time(Duration::from_secs(1));
-        for entry in lineup::entries(&case, &lineup::short(case.character)) {
+        let entries = lineup::entries(&case, &lineup::short(case.character))
+            .into_iter()
+            .filter(|e| {
+                case.dim() <= DENSE_VARIANTS_UP_TO || !e.label.ends_with(lineup::DENSE_SUFFIX)
+            });
+        for entry in entries {
             for rtol in RTOLS {
                 let opts = entry
                     .options
