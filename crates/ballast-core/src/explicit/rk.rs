@@ -33,6 +33,8 @@ pub struct ExplicitRk {
     swapped_first: Option<usize>,
     y_new: Vec<f64>,
     tmp: Vec<f64>,
+    /// Scratch: the non-zero scaled weights of one combination.
+    terms: Vec<(usize, f64)>,
     h: f64,
 }
 
@@ -49,6 +51,7 @@ impl ExplicitRk {
             swapped_first: None,
             y_new: vec![0.0; n],
             tmp: vec![0.0; n],
+            terms: Vec::with_capacity(s + 1),
             h: 0.0,
         }
     }
@@ -76,6 +79,31 @@ impl ExplicitRk {
         } else {
             self.tab.stages()
         }
+    }
+}
+
+/// The non-zero weights of `row` times `h`, with their stage indices, into
+/// `terms` (whose capacity was reserved at construction: no allocation).
+#[inline]
+fn scaled_terms(row: &[f64], h: f64, terms: &mut Vec<(usize, f64)>) {
+    terms.clear();
+    for (j, &w) in row.iter().enumerate() {
+        if w != 0.0 {
+            terms.push((j, h * w));
+        }
+    }
+}
+
+/// `out = base + sum_j c_j k_j` in one pass over the components, adding
+/// the terms in stage order (the same rounding as one pass per stage).
+#[inline]
+fn combine(base: Option<&[f64]>, terms: &[(usize, f64)], k: &[Vec<f64>], out: &mut [f64]) {
+    for (m, o) in out.iter_mut().enumerate() {
+        let mut acc = base.map_or(0.0, |b| b[m]);
+        for &(j, c) in terms {
+            acc += c * k[j][m];
+        }
+        *o = acc;
     }
 }
 
@@ -230,42 +258,23 @@ impl<S: System> Scheme<S> for ExplicitRk {
             } else {
                 &mut self.tmp
             };
-            target.copy_from_slice(&self.ends.y);
-            for (j, &aij) in tab.a[i].iter().enumerate() {
-                if aij != 0.0 {
-                    let ha = h * aij;
-                    let kj = &done[j];
-                    for m in 0..n {
-                        target[m] += ha * kj[m];
-                    }
-                }
-            }
+            scaled_terms(tab.a[i], h, &mut self.terms);
+            combine(Some(&self.ends.y), &self.terms, done, &mut target[..n]);
             p.rhs(self.ends.t + tab.c[i] * h, target, &mut rest[0]);
         }
         if !tab.fsal {
-            self.y_new.copy_from_slice(&self.ends.y);
-            for (j, &bj) in tab.b.iter().enumerate() {
-                if bj != 0.0 {
-                    let hb = h * bj;
-                    let kj = &self.k[j];
-                    for m in 0..n {
-                        self.y_new[m] += hb * kj[m];
-                    }
-                }
-            }
+            scaled_terms(tab.b, h, &mut self.terms);
+            combine(
+                Some(&self.ends.y),
+                &self.terms,
+                &self.k,
+                &mut self.y_new[..n],
+            );
         }
         let error = match tab.e {
             Some(e) => {
-                self.tmp.fill(0.0);
-                for (j, &ej) in e.iter().enumerate() {
-                    if ej != 0.0 {
-                        let he = h * ej;
-                        let kj = &self.k[j];
-                        for m in 0..n {
-                            self.tmp[m] += he * kj[m];
-                        }
-                    }
-                }
+                scaled_terms(e, h, &mut self.terms);
+                combine(None, &self.terms, &self.k, &mut self.tmp[..n]);
                 norm.rms(&self.tmp, &self.ends.y, &self.y_new)
             }
             None => {
