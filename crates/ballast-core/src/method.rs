@@ -59,7 +59,8 @@ impl Default for Method {
 }
 
 impl Method {
-    /// Every single (non-switching) method, in a stable order.
+    /// Every single (non-switching) method, in a stable order: the one-step
+    /// methods first, the two multistep families (Adams, BDF) last.
     pub const SINGLE: [Method; 15] = [
         Method::ForwardEuler,
         Method::Heun,

@@ -62,22 +62,9 @@ pub const MAX_BDF_ORDER: usize = 6;
 /// The highest order the variable-order BDF scheme uses ([`Method::Bdf`]).
 pub const BDF_SCHEME_MAX_ORDER: usize = 5;
 
-/// The one-step methods, in table order.
-const ONE_STEP: [Method; 13] = [
-    Method::ForwardEuler,
-    Method::Heun,
-    Method::Rk4,
-    Method::BogackiShampine32,
-    Method::DormandPrince54,
-    Method::Tsitouras54,
-    Method::DormandPrince853,
-    Method::BackwardEuler,
-    Method::Trapezoid,
-    Method::TrBdf2,
-    Method::Esdirk43,
-    Method::RadauIIA5,
-    Method::Ros3p,
-];
+/// The one-step methods, in table order: [`Method::SINGLE`] without the
+/// two multistep families at its end.
+const ONE_STEP: &[Method] = Method::SINGLE.split_at(Method::SINGLE.len() - 2).0;
 
 const N_KEYS: usize = ONE_STEP.len() + 3 * MAX_ADAMS_ORDER + MAX_BDF_ORDER;
 

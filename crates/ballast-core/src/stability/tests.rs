@@ -72,7 +72,7 @@ fn stability_functions_match_closed_forms() {
 fn rational_form_agrees_with_linear_solve_for_every_one_step_method() {
     // Internal consistency: R = P/Q (Faddeev–LeVerrier / products) against
     // 1 + z b^T (I - zA)^{-1} 1 by Gaussian elimination.
-    for m in ONE_STEP {
+    for &m in ONE_STEP {
         let Some(f) = one_step_function(m) else {
             continue;
         };
@@ -317,4 +317,12 @@ fn every_region_is_computed_and_consistent() {
             None => assert!(mid.is_infinite()),
         }
     }
+}
+
+#[test]
+fn one_step_list_is_single_without_the_multistep_families() {
+    assert_eq!(ONE_STEP.len(), 13);
+    assert!(ONE_STEP
+        .iter()
+        .all(|m| !matches!(m, Method::Adams | Method::Bdf | Method::Switching(_))));
 }
