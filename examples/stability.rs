@@ -90,6 +90,7 @@ fn main() {
             Method::Esdirk43,
             Method::RadauIIA5,
             Method::Ros3p,
+            Method::Rosenbrock32,
         ]),
     );
     section(

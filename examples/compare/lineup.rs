@@ -42,7 +42,15 @@ pub fn full(character: Character) -> Vec<Method> {
             DormandPrince853,
             Adams,
         ],
-        Character::Stiff => vec![DormandPrince54, Ros3p, TrBdf2, Esdirk43, RadauIIA5, Bdf],
+        Character::Stiff => vec![
+            DormandPrince54,
+            Ros3p,
+            Rosenbrock32,
+            TrBdf2,
+            Esdirk43,
+            RadauIIA5,
+            Bdf,
+        ],
         Character::Changing => vec![
             DormandPrince54,
             Tsitouras54,

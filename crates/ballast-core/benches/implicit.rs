@@ -12,13 +12,14 @@ use criterion::{criterion_group, criterion_main, BenchmarkId, Criterion};
 use std::hint::black_box;
 use std::time::Duration;
 
-const SCHEMES: [Method; 6] = [
+const SCHEMES: [Method; 7] = [
     Method::BackwardEuler,
     Method::Trapezoid,
     Method::TrBdf2,
     Method::Esdirk43,
     Method::RadauIIA5,
     Method::Ros3p,
+    Method::Rosenbrock32,
 ];
 const CASES: [&str; 3] = ["robertson-long", "hires", "brusselator-500"];
 const RTOL: f64 = 1e-6;
@@ -47,11 +48,11 @@ fn work_table() {
             "\n{name} (rtol {RTOL:e}, atol {ATOL:e}); reference: {}",
             case.reference.source
         );
-        eprintln!("scheme        steps  rej fail     f(all)  f(jac)     J    LU  rel.err");
+        eprintln!("scheme           steps  rej fail     f(all)  f(jac)     J    LU  rel.err");
         for m in SCHEMES {
             match solve(&case, m) {
                 Ok((y, st)) => eprintln!(
-                    "{:12} {:6} {:4} {:4} {:10} {:7} {:5} {:5}  {:.2e}",
+                    "{:15} {:6} {:4} {:4} {:10} {:7} {:5} {:5}  {:.2e}",
                     m.name(),
                     st.accepted,
                     st.rejected,
@@ -62,7 +63,7 @@ fn work_table() {
                     st.work.factorizations,
                     case.reference.relative_error(&y)
                 ),
-                Err(e) => eprintln!("{:12} failed: {e}", m.name()),
+                Err(e) => eprintln!("{:15} failed: {e}", m.name()),
             }
         }
     }

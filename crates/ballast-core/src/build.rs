@@ -65,6 +65,15 @@ pub fn build<S: System>(
             implicit::Rosenbrock::new(&implicit::tableau::ROS3P, n, structure, &opts.implicit)
                 .map_err(BuildError::InvalidOptions)?,
         )),
+        Method::Rosenbrock32 => Ok(Box::new(
+            implicit::Rosenbrock::new(
+                &implicit::tableau::ROSENBROCK_32,
+                n,
+                structure,
+                &opts.implicit,
+            )
+            .map_err(BuildError::InvalidOptions)?,
+        )),
         other => Err(BuildError::NotASingleScheme(other)),
     }
 }

@@ -42,8 +42,13 @@ pub enum Method {
     Esdirk43,
     /// Radau IIA, 3 stages, order 5, L-stable (Hairer and Wanner II, IV.8).
     RadauIIA5,
-    /// ROS3P, a third-order Rosenbrock method (Lang and Verwer 2001).
+    /// ROS3P, a third-order Rosenbrock method, A-stable (Lang and Verwer
+    /// 2001). Its error estimate vanishes on linear problems; prefer
+    /// [`Method::Rosenbrock32`] unless order 3 on parabolic problems matters.
     Ros3p,
+    /// A four-stage Rosenbrock method of order 3(2), L-stable and stiffly
+    /// accurate (Sandu et al. 1997, who call it RODAS3).
+    Rosenbrock32,
     /// Variable-order, variable-step Adams predictor–corrector (orders 1–12).
     Adams,
     /// Variable-order, variable-step BDF (orders 1–5).
@@ -61,7 +66,7 @@ impl Default for Method {
 impl Method {
     /// Every single (non-switching) method, in a stable order: the one-step
     /// methods first, the two multistep families (Adams, BDF) last.
-    pub const SINGLE: [Method; 15] = [
+    pub const SINGLE: [Method; 16] = [
         Method::ForwardEuler,
         Method::Heun,
         Method::Rk4,
@@ -75,6 +80,7 @@ impl Method {
         Method::Esdirk43,
         Method::RadauIIA5,
         Method::Ros3p,
+        Method::Rosenbrock32,
         Method::Adams,
         Method::Bdf,
     ];
@@ -95,6 +101,7 @@ impl Method {
             Method::Esdirk43 => "ESDIRK 4(3)",
             Method::RadauIIA5 => "Radau IIA 5",
             Method::Ros3p => "ROS3P",
+            Method::Rosenbrock32 => "Rosenbrock 3(2)",
             Method::Adams => "Adams",
             Method::Bdf => "BDF",
             Method::Switching(SwitchPair::DormandPrinceRadau) => "switching DP5/Radau5",
@@ -128,7 +135,7 @@ impl Method {
         Some(match self {
             Method::ForwardEuler | Method::BackwardEuler => 1,
             Method::Heun | Method::Trapezoid | Method::TrBdf2 => 2,
-            Method::BogackiShampine32 | Method::Ros3p => 3,
+            Method::BogackiShampine32 | Method::Ros3p | Method::Rosenbrock32 => 3,
             Method::Rk4 | Method::Esdirk43 => 4,
             Method::DormandPrince54 | Method::Tsitouras54 | Method::RadauIIA5 => 5,
             Method::DormandPrince853 => 8,

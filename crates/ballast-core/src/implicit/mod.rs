@@ -2,7 +2,7 @@
 //!
 //! - [`Dirk`] — backward Euler, trapezoid, TR-BDF2, ESDIRK 4(3);
 //! - [`Radau5`] — Radau IIA of order 5 with the real/complex splitting;
-//! - [`Rosenbrock`] — ROS3P.
+//! - [`Rosenbrock`] — ROS3P and a four-stage L-stable Rosenbrock 3(2).
 //!
 //! All share the [`iteration::IterationMatrix`] cache (Jacobian reuse,
 //! factorisation reuse) and the Newton control of [`crate::newton`].

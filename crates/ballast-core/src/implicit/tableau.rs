@@ -272,6 +272,10 @@ pub struct RosenbrockTableau {
     pub order: usize,
     /// Classical order of the embedded solution.
     pub embedded_order: usize,
+    /// Whether the error estimate must be filtered through
+    /// `(I - h gamma J)^{-1}`: true when the embedded solution does not damp
+    /// stiff components (its stability function does not vanish at infinity).
+    pub filter_estimate: bool,
 }
 
 impl RosenbrockTableau {
@@ -308,6 +312,48 @@ pub static ROS3P: RosenbrockTableau = RosenbrockTableau {
     ],
     order: 3,
     embedded_order: 2,
+    filter_estimate: true,
+};
+
+/// A four-stage Rosenbrock method of order 3 with an embedded order-2
+/// solution, L-stable and stiffly accurate, with an L-stable embedded
+/// solution; called RODAS3 by its authors (Sandu, Verwer, Blom, Spee,
+/// Carmichael and Potra, Atmospheric Environment 31 (1997) 3459–3472).
+///
+/// The paper gives the transformed form of Hairer and Wanner II, eq.
+/// (7.5)–(7.6), with `gamma = 1/2`: `a_31 = a_41 = 2`, `a_43 = 1` (others
+/// 0); `c_21 = 4`, `c_31 = 1`, `c_32 = -1`, `c_41 = 1`, `c_42 = -1`,
+/// `c_43 = -8/3`; `m = (2, 0, 1, 1)`, error weights `(0, 0, 0, 1)`
+/// (from memory of the paper). Converted back to this form through
+/// `Gamma^{-1} = I / gamma - C` (`C` strictly lower), `alpha = A Gamma`,
+/// `b = m Gamma`, exactly in rationals: `gamma_ij` rows `(1)`,
+/// `(-1/4, -1/4)`, `(1/12, 1/12, -2/3)`; `alpha_ij` rows `(0)`, `(1, 0)`,
+/// `(3/4, -1/4, 1/2)`; `b = (5/6, -1/6, -1/6, 1/2)` (the last row of
+/// `beta = alpha + Gamma`: stiffly accurate) and `bhat = (3/4, -1/4, 1/2, 0)`
+/// (the last row of `alpha`). The tests below confirm the order conditions
+/// (order 3 for `b`, exactly 2 for `bhat`) and
+/// `R(z) = 8 (z^3 - 6z + 6) / (3 (z - 2)^4)`, which vanishes at infinity.
+///
+/// Unlike ROS3P's, its estimate does not vanish on linear problems: on
+/// `y' = lambda y` it is `(R(z) - Rhat(z)) y_n = 2 z^3 / (3 (z - 2)^4) y_n`,
+/// of order `z^3` for small `z` and damped for large `|z|`, so it needs no filter.
+pub static ROSENBROCK_32: RosenbrockTableau = RosenbrockTableau {
+    method: Method::Rosenbrock32,
+    gamma: 0.5,
+    alpha: &[&[], &[0.0], &[1.0, 0.0], &[0.75, -0.25, 0.5]],
+    gamma_ij: &[
+        &[],
+        &[1.0],
+        &[-0.25, -0.25],
+        &[1.0 / 12.0, 1.0 / 12.0, -2.0 / 3.0],
+    ],
+    b: &[5.0 / 6.0, -1.0 / 6.0, -1.0 / 6.0, 0.5],
+    bhat: Some(&[0.75, -0.25, 0.5, 0.0]),
+    alpha_sum: &[0.0, 0.0, 1.0, 1.0],
+    gamma_sum: &[0.5, 1.5, 0.0, 0.0],
+    order: 3,
+    embedded_order: 2,
+    filter_estimate: false,
 };
 
 /// Every implicit Runge–Kutta tableau in this module.
@@ -559,47 +605,73 @@ mod tests {
         assert!((r + 1.0).abs() < 1e-6, "trapezoid: R(-1e9) = {r}");
     }
 
-    #[test]
-    fn ros3p_coefficients_and_orders() {
-        let t = &ROS3P;
-        let s3 = 3f64.sqrt();
-        let g = 0.5 + s3 / 6.0;
-        assert!((t.gamma - g).abs() < TOL);
-        assert!((t.gamma_ij[2][0] + g).abs() < TOL);
-        assert!((t.gamma_ij[2][1] + 0.5 + s3 / 3.0).abs() < TOL);
-        let s = t.stages();
-        // beta_ij = alpha_ij + gamma_ij (j < i); sums alpha_i, beta'_i.
+    /// The residuals of the order conditions 1–4 of Hairer and Wanner II,
+    /// IV.7, Table 7.1 (orders 1, 2, 3, 3) for the weights `b` of `t`,
+    /// after checking the tabulated sums `alpha_i`, `gamma_i`.
+    fn rosenbrock_residuals(t: &RosenbrockTableau, b: &[f64]) -> [f64; 4] {
+        let (s, g) = (t.stages(), t.gamma);
         for i in 0..s {
             let ai: f64 = t.alpha[i].iter().sum();
             assert!((ai - t.alpha_sum[i]).abs() < TOL);
             let gi: f64 = g + t.gamma_ij[i].iter().sum::<f64>();
             assert!((gi - t.gamma_sum[i]).abs() < TOL);
         }
+        // beta_ij = alpha_ij + gamma_ij (j < i); beta'_i = sum_j beta_ij.
         let beta = |i: usize, j: usize| t.alpha[i][j] + t.gamma_ij[i][j];
         let beta_p: Vec<f64> = (0..s).map(|i| (0..i).map(|j| beta(i, j)).sum()).collect();
-        let residuals = |b: &[f64]| {
-            let bb: f64 = (0..s)
-                .map(|i| (0..i).map(|k| b[i] * beta(i, k) * beta_p[k]).sum::<f64>())
-                .sum();
-            [
-                b.iter().sum::<f64>() - 1.0,
-                dot(b, &beta_p) - (0.5 - g),
-                (0..s).map(|i| b[i] * t.alpha_sum[i].powi(2)).sum::<f64>() - 1.0 / 3.0,
-                bb - (1.0 / 6.0 - g + g * g),
-            ]
-        };
-        // Order conditions of Hairer and Wanner II, IV.7, Table 7.1.
-        for (k, r) in residuals(t.b).iter().enumerate() {
-            assert!(r.abs() < TOL, "ROS3P b: condition {k}: {r}");
+        let bb: f64 = (0..s)
+            .map(|i| (0..i).map(|k| b[i] * beta(i, k) * beta_p[k]).sum::<f64>())
+            .sum();
+        [
+            b.iter().sum::<f64>() - 1.0,
+            dot(b, &beta_p) - (0.5 - g),
+            (0..s).map(|i| b[i] * t.alpha_sum[i].powi(2)).sum::<f64>() - 1.0 / 3.0,
+            bb - (1.0 / 6.0 - g + g * g),
+        ]
+    }
+
+    /// `b` has order 3, `bhat` order 2 and not 3.
+    fn assert_rosenbrock_orders(t: &RosenbrockTableau) {
+        for (k, r) in rosenbrock_residuals(t, t.b).iter().enumerate() {
+            assert!(r.abs() < TOL, "{:?} b: condition {k}: {r}", t.method);
         }
-        let rh = residuals(t.bhat.unwrap());
+        let rh = rosenbrock_residuals(t, t.bhat.unwrap());
         assert!(
             rh[0].abs() < TOL && rh[1].abs() < TOL,
-            "ROS3P bhat order 2: {rh:?}"
+            "{:?} bhat order 2: {rh:?}",
+            t.method
         );
         assert!(
             rh[2].abs() > 1e-6 || rh[3].abs() > 1e-6,
-            "ROS3P bhat should be order 2 only"
+            "{:?} bhat should be order 2 only",
+            t.method
         );
+    }
+
+    #[test]
+    fn ros3p_coefficients_and_orders() {
+        // Lang and Verwer (2001): gamma = 1/2 + sqrt(3)/6.
+        let t = &ROS3P;
+        let s3 = 3f64.sqrt();
+        let g = 0.5 + s3 / 6.0;
+        assert!((t.gamma - g).abs() < TOL);
+        assert!((t.gamma_ij[2][0] + g).abs() < TOL);
+        assert!((t.gamma_ij[2][1] + 0.5 + s3 / 3.0).abs() < TOL);
+        assert_rosenbrock_orders(t);
+    }
+
+    #[test]
+    fn rosenbrock_32_orders_and_stiff_accuracy() {
+        // Sandu et al. (1997): order 3(2), stiffly accurate, so b is the
+        // last row of beta = alpha + Gamma and bhat the last row of alpha.
+        let t = &ROSENBROCK_32;
+        assert_rosenbrock_orders(t);
+        let s = t.stages();
+        for j in 0..s - 1 {
+            let beta = t.alpha[s - 1][j] + t.gamma_ij[s - 1][j];
+            assert!((t.b[j] - beta).abs() < TOL, "b_{j} vs beta_{j}");
+            assert!((t.bhat.unwrap()[j] - t.alpha[s - 1][j]).abs() < TOL);
+        }
+        assert_eq!(t.b[s - 1], t.gamma);
     }
 }

@@ -60,7 +60,8 @@ fn global_error(m: crate::method::Method, steps: usize) -> f64 {
 fn measured_orders_equal_the_published_orders() {
     // Published orders: backward Euler 1, trapezoid 2, TR-BDF2 2 (Hosea and
     // Shampine 1996), ESDIRK 4(3) 4 (Kennedy and Carpenter 2016), Radau IIA
-    // 5 (Hairer and Wanner II, IV.5), ROS3P 3 (Lang and Verwer 2001).
+    // 5 (Hairer and Wanner II, IV.5), ROS3P 3 (Lang and Verwer 2001),
+    // Rosenbrock 3(2) 3 (Sandu et al. 1997).
     use crate::method::Method::*;
     for (m, order, n) in [
         (BackwardEuler, 1.0, 64),
@@ -69,6 +70,7 @@ fn measured_orders_equal_the_published_orders() {
         (Esdirk43, 4.0, 16),
         (RadauIIA5, 5.0, 16),
         (Ros3p, 3.0, 32),
+        (Rosenbrock32, 3.0, 32),
     ] {
         let (e1, e2) = (global_error(m, n), global_error(m, 2 * n));
         let rate = (e1 / e2).log2();

@@ -80,17 +80,20 @@ proptest! {
         let tol = 1e-9 * (1.0 + shift);
         let mut band = LinearSolver::<f64>::new(n, &Structure::Banded { lower: l, upper: u }).unwrap();
         let x = solve_with(&mut band, shift, &jb, &b);
-        let scale = 1.0 + x.iter().fold(0.0f64, |m, v| m.max(v.abs()));
-        prop_assert!(residual(shift, &jd, &x, &b) < tol * scale);
+        // Each layout must solve the system to a small residual (backward
+        // error); the solutions themselves may differ by the condition
+        // number times that, which a random shifted band can make large.
+        let scale_of = |x: &[f64]| 1.0 + x.iter().fold(0.0f64, |m, v| m.max(v.abs()));
+        prop_assert!(residual(shift, &jd, &x, &b) < tol * scale_of(&x));
         for use_faer in [false, true] {
             let mut d = LinearSolver::Dense(DenseLu::with_kernel(n, use_faer));
             let xd = solve_with(&mut d, shift, &jd, &b);
-            for i in 0..n { prop_assert!((xd[i] - x[i]).abs() < tol * scale); }
+            prop_assert!(residual(shift, &jd, &xd, &b) < tol * scale_of(&xd));
         }
         let pat = match js.storage() { crate::matrix::Storage::Sparse { pattern, .. } => pattern.clone(), _ => unreachable!() };
         let mut sp = LinearSolver::<f64>::new(n, &Structure::Sparse(pat)).unwrap();
         let xs = solve_with(&mut sp, shift, &js, &b);
-        for i in 0..n { prop_assert!((xs[i] - x[i]).abs() < tol * scale); }
+        prop_assert!(residual(shift, &jd, &xs, &b) < tol * scale_of(&xs));
     }
 
     #[test]

@@ -172,6 +172,7 @@ pub fn one_step_function(method: Method) -> Option<StabilityFunction> {
         Method::Esdirk43 => implicit(&im::ESDIRK_43),
         Method::RadauIIA5 => implicit(&im::RADAU_IIA_5),
         Method::Ros3p => Some(StabilityFunction::from_rosenbrock(&im::ROS3P)),
+        Method::Rosenbrock32 => Some(StabilityFunction::from_rosenbrock(&im::ROSENBROCK_32)),
         _ => None,
     }
 }

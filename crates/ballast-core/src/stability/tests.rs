@@ -231,11 +231,17 @@ fn implicit_one_step_methods() {
         "{}",
         s.r_infinity
     );
+    // Sandu et al. (1997): the four-stage Rosenbrock 3(2) is L-stable;
+    // R(z) = 8 (z^3 - 6z + 6) / (3 (z - 2)^4) (derived in implicit::tableau).
+    let s = method(Method::Rosenbrock32);
+    assert!(s.a_stable && s.l_stable);
+    assert!(s.r_infinity.abs() < 1e-8, "{}", s.r_infinity);
     for m in [
         Method::TrBdf2,
         Method::Esdirk43,
         Method::RadauIIA5,
         Method::Ros3p,
+        Method::Rosenbrock32,
     ] {
         assert_eq!(critical_step(m, c(-1e9, 1e3)), None, "{m:?}");
     }
@@ -321,7 +327,7 @@ fn every_region_is_computed_and_consistent() {
 
 #[test]
 fn one_step_list_is_single_without_the_multistep_families() {
-    assert_eq!(ONE_STEP.len(), 13);
+    assert_eq!(ONE_STEP.len(), 14);
     assert!(ONE_STEP
         .iter()
         .all(|m| !matches!(m, Method::Adams | Method::Bdf | Method::Switching(_))));

@@ -95,6 +95,7 @@ fn panels() -> Vec<Panel> {
                 Method::Esdirk43,
                 Method::RadauIIA5,
                 Method::Ros3p,
+                Method::Rosenbrock32,
             ]),
         },
         Panel {
