@@ -26,14 +26,23 @@ const MAX_PRODUCTS: usize = 40;
 /// so an estimate within a few percent keeps steps inside the region.
 const ESTIMATE_TOL: f64 = 1e-2;
 
+/// Accuracy asked while the steps stay below `FAR_FRACTION` of the reach:
+/// an estimate 10% off (or even several times off) cannot put such a step
+/// outside the region, and a warm start meets it in two or three products.
+const FAR_ESTIMATE_TOL: f64 = 1e-1;
+
 /// Rejections in a row that trigger a fresh estimate (the stiffness may have grown).
 const REJECTIONS_TO_ESTIMATE: usize = 2;
 
 /// When the steps stay far inside the stability region (below
 /// `FAR_FRACTION` of the reach), the interval between full estimates
-/// doubles, up to `MAX_INTERVAL_FACTOR` times the configured one: a
+/// doubles, up to `MAX_INTERVAL_FACTOR` times the configured one, and a
+/// move of the stage estimate that keeps `h * s` below this fraction does
+/// not call for a full estimate: the stiffness would have to grow five-fold
+/// before such a step left the region, and the stage check (every
+/// `STAGE_CHECK_EVERY` steps) or the rejections see that growth first. A
 /// non-stiff run then pays almost nothing for being watched.
-const FAR_FRACTION: f64 = 0.05;
+const FAR_FRACTION: f64 = 0.2;
 const MAX_INTERVAL_FACTOR: usize = 16;
 
 /// The free stage estimate is looked at every this many accepted steps: it
@@ -51,7 +60,11 @@ pub(crate) struct Spectrum {
 
 pub(crate) struct Monitor {
     estimator: SpectralEstimator,
+    /// Power-iteration options near the boundary, and far inside the region.
     opts: PowerOptions,
+    opts_far: PowerOptions,
+    /// The last step stayed below `FAR_FRACTION` of the reach.
+    far: bool,
     fy: Vec<f64>,
     y: Vec<f64>,
     latest: Option<Spectrum>,
@@ -73,6 +86,10 @@ impl Monitor {
             opts: PowerOptions::default()
                 .tol(ESTIMATE_TOL)
                 .max_products(MAX_PRODUCTS),
+            opts_far: PowerOptions::default()
+                .tol(FAR_ESTIMATE_TOL)
+                .max_products(MAX_PRODUCTS),
+            far: false,
             fy: vec![0.0; n],
             y: vec![0.0; n],
             latest: None,
@@ -121,7 +138,8 @@ impl Monitor {
     /// Adapts the estimate interval to how far inside the region the
     /// steps are: `fraction = |h| rho / r(theta)`.
     pub(crate) fn note_margin(&mut self, fraction: f64) {
-        self.stretch = if fraction < FAR_FRACTION {
+        self.far = fraction < FAR_FRACTION;
+        self.stretch = if self.far {
             (self.stretch * 2).min(MAX_INTERVAL_FACTOR)
         } else {
             1
@@ -140,6 +158,7 @@ impl Monitor {
     /// Back to the configured interval (after a switch or a capped step).
     pub(crate) fn watch_closely(&mut self) {
         self.stretch = 1;
+        self.far = false;
     }
 
     /// Runs the power iteration at the scheme's current state.
@@ -157,7 +176,8 @@ impl Monitor {
         }
         let clock = Instant::now();
         let f = |v: &[f64], out: &mut [f64]| p.rhs(t, v, out);
-        let Ok(est) = self.estimator.estimate_fd(f, &self.y, &self.fy, &self.opts) else {
+        let opts = if self.far { &self.opts_far } else { &self.opts };
+        let Ok(est) = self.estimator.estimate_fd(f, &self.y, &self.fy, opts) else {
             return;
         };
         let elapsed = clock.elapsed().as_secs_f64();
