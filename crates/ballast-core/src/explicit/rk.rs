@@ -43,6 +43,7 @@ impl ExplicitRk {
     /// A scheme for a system of dimension `n`; all work arrays are allocated here.
     pub fn new(tab: &'static Tableau, n: usize) -> Self {
         let s = tab.stages();
+        debug_assert!(s <= MAX_STAGES, "tableau larger than MAX_STAGES");
         let extra = usize::from(!tab.fsal);
         Self {
             tab,
@@ -89,6 +90,10 @@ impl ExplicitRk {
         }
     }
 }
+
+/// Stages of the largest tableau this engine runs (the free stiffness
+/// estimate gathers at most this many stage slices).
+const MAX_STAGES: usize = 16;
 
 /// The non-zero weights of `row`, with their stage indices.
 fn non_zero(row: &[f64]) -> Vec<(usize, f64)> {
@@ -262,26 +267,35 @@ impl SchemeState for ExplicitRk {
 
     fn stage_spectral_estimate(&self) -> Option<f64> {
         let (i, j) = self.tab.stiffness_pair?;
-        let ai = self.tab.a.get(i).copied();
-        let bj_row: &[f64] = if j < self.tab.a.len() && j > 0 {
-            self.tab.a[j]
-        } else {
+        let a = self.tab.a;
+        if j == 0 || i >= a.len() || j >= a.len() {
             return None;
-        };
-        let ai = ai?;
-        // Y_i - Y_j = h sum_l (a_il - a_jl) k_l, computed without buffers.
-        let h = self.h;
+        }
+        // Y_i - Y_j = h sum_l (a_il - a_jl) k_l, computed without buffers:
+        // the non-zero weights and their stage slices gathered once.
+        let (ai, aj) = (a[i], a[j]);
+        let n = self.n;
+        let mut ws = [0.0; MAX_STAGES];
+        let mut ks: [&[f64]; MAX_STAGES] = [&[]; MAX_STAGES];
+        let mut terms = 0;
+        for l in 0..ai.len().max(aj.len()).min(MAX_STAGES) {
+            let w = ai.get(l).copied().unwrap_or(0.0) - aj.get(l).copied().unwrap_or(0.0);
+            if w != 0.0 {
+                ws[terms] = self.h * w;
+                ks[terms] = &self.stage(l)[..n];
+                terms += 1;
+            }
+        }
+        let (ki, kj) = (&self.stage(i)[..n], &self.stage(j)[..n]);
         let (mut num, mut den) = (0.0, 0.0);
-        for m in 0..self.n {
-            let dk = self.stage(i)[m] - self.stage(j)[m];
+        for m in 0..n {
+            let dk = ki[m] - kj[m];
             let mut dy = 0.0;
-            for l in 0..bj_row.len().max(ai.len()) {
-                let a_il = ai.get(l).copied().unwrap_or(0.0);
-                let a_jl = bj_row.get(l).copied().unwrap_or(0.0);
-                dy += (a_il - a_jl) * self.stage(l)[m];
+            for t in 0..terms {
+                dy += ws[t] * ks[t][m];
             }
             num += dk * dk;
-            den += (h * dy) * (h * dy);
+            den += dy * dy;
         }
         if den > 0.0 && num.is_finite() {
             Some((num / den).sqrt())
