@@ -13,6 +13,8 @@
 //! predicts the next step's stages. The factorisations are kept while
 //! `h / h_factored` is in `[1, 1.2)` and Newton contracted fast.
 
+use std::sync::OnceLock;
+
 use super::iteration::IterationMatrix;
 use super::radau_constants::RadauConstants;
 use super::tableau::RADAU_IIA_5;
@@ -59,19 +61,26 @@ fn three(n: usize) -> [Vec<f64>; 3] {
     [vec![0.0; n], vec![0.0; n], vec![0.0; n]]
 }
 
+/// The transformation constants of Radau IIA 5, computed once per process
+/// (an eigen-decomposition of `A^{-1}`: a few microseconds, which a short
+/// run of the switching pair would otherwise pay for its standby scheme).
+fn constants() -> &'static Option<RadauConstants> {
+    static CONSTANTS: OnceLock<Option<RadauConstants>> = OnceLock::new();
+    CONSTANTS.get_or_init(|| {
+        let tab = &RADAU_IIA_5;
+        let a: [[f64; 3]; 3] = std::array::from_fn(|i| std::array::from_fn(|j| tab.a[i][j]));
+        let b = [tab.b[0], tab.b[1], tab.b[2]];
+        let c = [tab.c[0], tab.c[1], tab.c[2]];
+        RadauConstants::new(&a, &b, &c)
+    })
+}
+
 impl Radau5 {
     /// A scheme for a system of dimension `n` whose Jacobian has `structure`.
     pub fn new(n: usize, structure: &Structure, opts: &ImplicitOptions) -> Result<Self, String> {
-        let tab = &RADAU_IIA_5;
-        let mut a = [[0.0; 3]; 3];
-        for i in 0..3 {
-            for j in 0..3 {
-                a[i][j] = tab.a[i][j];
-            }
-        }
-        let b = [tab.b[0], tab.b[1], tab.b[2]];
-        let c = [tab.c[0], tab.c[1], tab.c[2]];
-        let k = RadauConstants::new(&a, &b, &c).ok_or("Radau IIA constants are degenerate")?;
+        let k = constants()
+            .clone()
+            .ok_or("Radau IIA constants are degenerate")?;
         Ok(Self {
             k,
             n,
