@@ -21,6 +21,8 @@ pub struct BandLu<T: Scalar> {
     ld: usize,
     ab: Vec<T>,
     piv: Vec<usize>,
+    /// `1 / U_jj`: the solve multiplies instead of dividing.
+    inv_diag: Vec<T>,
 }
 
 impl<T: Scalar> BandLu<T> {
@@ -35,6 +37,7 @@ impl<T: Scalar> BandLu<T> {
             ld,
             ab: vec![T::default(); ld * n],
             piv: vec![0; n],
+            inv_diag: vec![T::default(); n],
         }
     }
 
@@ -79,24 +82,29 @@ impl<T: Scalar> BandLu<T> {
         self.factor_filled()
     }
 
-    /// Unblocked band LU (the elimination of LAPACK's `gbtf2`).
+    /// Unblocked band LU (the elimination of LAPACK's `gbtf2`), walking
+    /// contiguous column slices: in this layout the entries of one column
+    /// are adjacent, the diagonal at offset `l + u`. The pivot is the entry
+    /// of largest `|re| + |im|` (as LAPACK's `izamax` chooses it), which
+    /// needs no square root.
     fn factor_filled(&mut self) -> Result<(), StepFailure> {
-        let (n, l, u) = (self.n, self.lower, self.upper);
+        let (n, u, ld) = (self.n, self.upper, self.ld);
+        let d = self.lower + u;
         // Last column touched so far by row interchanges.
         let mut ju = 0usize;
         for j in 0..n {
-            let km = l.min(n - 1 - j);
-            let mut p = 0;
-            let mut best = -1.0;
-            for r in 0..=km {
-                let m = self.ab[self.idx(j + r, j)].magnitude();
+            let km = self.lower.min(n - 1 - j);
+            let col = &self.ab[j * ld + d..j * ld + d + km + 1];
+            let (mut p, mut best) = (0, -1.0);
+            for (r, v) in col.iter().enumerate() {
+                let m = v.pivot_size();
                 if m > best {
                     best = m;
                     p = r;
                 }
             }
             self.piv[j] = j + p;
-            let pivot = self.ab[self.idx(j + p, j)];
+            let pivot = col[p];
             check_pivot(pivot)?;
             ju = ju.max((j + u + p).min(n - 1));
             if p != 0 {
@@ -106,19 +114,23 @@ impl<T: Scalar> BandLu<T> {
                 }
             }
             let inv = T::one() / pivot;
-            for r in 1..=km {
-                let k = self.idx(j + r, j);
-                self.ab[k] *= inv;
+            self.inv_diag[j] = inv;
+            // Column j ends before column j + 1 begins.
+            let (left, right) = self.ab.split_at_mut((j + 1) * ld);
+            let mult = &mut left[j * ld + d + 1..j * ld + d + 1 + km];
+            for m in mult.iter_mut() {
+                *m *= inv;
             }
+            let mult = &*mult;
             for c in j + 1..=ju {
-                let ujc = self.ab[self.idx(j, c)];
+                // (j, c) relative to the start of column j + 1; c <= j + d.
+                let off = (c - j - 1) * ld + d + j - c;
+                let ujc = right[off];
                 if ujc == T::default() {
                     continue;
                 }
-                for r in 1..=km {
-                    let m = self.ab[self.idx(j + r, j)];
-                    let k = self.idx(j + r, c);
-                    self.ab[k] -= m * ujc;
+                for (t, &m) in right[off + 1..off + 1 + km].iter_mut().zip(mult) {
+                    *t -= m * ujc;
                 }
             }
         }
@@ -127,19 +139,27 @@ impl<T: Scalar> BandLu<T> {
 
     /// Overwrites `b` with the solution of `(shift I - J) x = b`.
     pub fn solve_in_place(&mut self, b: &mut [T]) {
-        let (n, l, u) = (self.n, self.lower, self.upper);
+        let (n, ld) = (self.n, self.ld);
+        let d = self.lower + self.upper;
         for j in 0..n {
-            b.swap(j, self.piv[j]);
+            let pj = self.piv[j];
+            if pj != j {
+                b.swap(j, pj);
+            }
+            let km = self.lower.min(n - 1 - j);
             let bj = b[j];
-            for r in 1..=l.min(n - 1 - j) {
-                b[j + r] -= self.ab[self.idx(j + r, j)] * bj;
+            let mult = &self.ab[j * ld + d + 1..j * ld + d + 1 + km];
+            for (x, &m) in b[j + 1..j + 1 + km].iter_mut().zip(mult) {
+                *x -= m * bj;
             }
         }
         for j in (0..n).rev() {
-            b[j] /= self.ab[self.idx(j, j)];
+            b[j] *= self.inv_diag[j];
             let bj = b[j];
-            for i in j.saturating_sub(l + u)..j {
-                b[i] -= self.ab[self.idx(i, j)] * bj;
+            let i0 = j.saturating_sub(d);
+            let col = &self.ab[j * ld + d - (j - i0)..j * ld + d];
+            for (x, &a) in b[i0..j].iter_mut().zip(col) {
+                *x -= a * bj;
             }
         }
     }

@@ -51,6 +51,9 @@ pub trait Scalar:
     fn magnitude(self) -> f64;
     /// Whether both parts are finite.
     fn finite(self) -> bool;
+    /// The size used to choose pivots: `|x|` for reals, `|re| + |im|` for
+    /// complex numbers (LAPACK's choice; no square root).
+    fn pivot_size(self) -> f64;
 }
 
 impl Scalar for f64 {
@@ -60,6 +63,10 @@ impl Scalar for f64 {
     }
     #[inline]
     fn magnitude(self) -> f64 {
+        f64::abs(self)
+    }
+    #[inline]
+    fn pivot_size(self) -> f64 {
         f64::abs(self)
     }
     #[inline]
@@ -76,6 +83,10 @@ impl Scalar for Complex64 {
     #[inline]
     fn magnitude(self) -> f64 {
         Complex64::norm(self)
+    }
+    #[inline]
+    fn pivot_size(self) -> f64 {
+        self.re.abs() + self.im.abs()
     }
     #[inline]
     fn finite(self) -> bool {
@@ -148,7 +159,7 @@ impl std::fmt::Debug for Scratch {
 
 /// Checks the factor diagonal for zero or non-finite pivots.
 pub(crate) fn check_pivot<T: Scalar>(p: T) -> Result<(), StepFailure> {
-    if p.finite() && p.magnitude() > 0.0 {
+    if p.finite() && p.pivot_size() > 0.0 {
         Ok(())
     } else {
         Err(StepFailure::SingularMatrix)
