@@ -111,6 +111,11 @@ impl Monitor {
         self.latest
     }
 
+    /// Accepted steps since the latest full estimate.
+    pub(crate) fn age(&self) -> usize {
+        self.steps_since
+    }
+
     /// Whether a full estimate is due after an accepted step of `scheme`.
     pub(crate) fn due(&self, scheme: &dyn SchemeState, th: &SwitchThresholds) -> bool {
         if self.latest.is_none() || self.steps_since >= th.estimate_interval * self.stretch {

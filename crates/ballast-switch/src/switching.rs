@@ -49,8 +49,23 @@ const PROBE_AFTER_CAPPED_STEPS: usize = 15;
 /// unit time exceeds the capped explicit scheme's by this factor.
 const COSTLIER_FACTOR: f64 = 1.2;
 
+/// A trial that turns out this many times dearer per unit time than the
+/// capped explicit scheme ends after `EARLY_RETURN_STEPS` implicit steps,
+/// before the usual `min_steps_between_switches`: the measurement is
+/// clear, and every further implicit step is a loss.
+const CLEARLY_DEARER_FACTOR: f64 = 2.0;
+const EARLY_RETURN_STEPS: usize = 10;
+
+/// After the implicit scheme was measured dearer and left, a new trial
+/// needs the spectral radius to have grown by this factor since: the
+/// implicit scheme's advantage grows with the stiffness, and without such
+/// growth a new trial would only measure the same loss again.
+const PROBE_AGAIN_GROWTH: f64 = 2.0;
+
 /// One implicit step in this many is timed (reading the clock costs tens
-/// of nanoseconds, comparable to a whole step of a small implicit system).
+/// of nanoseconds, comparable to a whole step of a small implicit system),
+/// and one explicit step in this many among those the cap holds (only
+/// those enter a comparison, so a run the cap never holds reads no clock).
 const TIME_EVERY: usize = 8;
 
 /// Implicit steps between two looks at the way back to the explicit scheme
@@ -141,6 +156,8 @@ pub(crate) struct Switcher<S: System> {
     h_implicit_seen: f64,
     /// Capped steps in a row before a trial switch.
     probe_after: usize,
+    /// Spectral radius when the implicit scheme was last left as dearer.
+    rho_left_dearer: Option<f64>,
     /// Counter snapshot and clock at the previous accepted step.
     last_rhs: usize,
     clock: Option<Instant>,
@@ -188,6 +205,7 @@ impl<S: System> Switcher<S> {
                 h_uncapped: 0.0,
                 h_implicit_seen: 0.0,
                 probe_after: PROBE_AFTER_CAPPED_STEPS,
+                rho_left_dearer: None,
                 last_rhs: 0,
                 clock: None,
             },
@@ -322,7 +340,12 @@ impl<S: System> Switcher<S> {
             _ => None,
         };
         self.last_rhs = p.counters.rhs_evals;
-        if active.is_implicit() && self.implicit_cost.steps % TIME_EVERY == 0 {
+        let time_next = if active.is_implicit() {
+            self.implicit_cost.steps % TIME_EVERY == 0
+        } else {
+            self.capped_run > 0 && self.capped_run % TIME_EVERY == 0
+        };
+        if time_next {
             self.clock = Some(Instant::now());
         }
         next
@@ -346,8 +369,13 @@ impl<S: System> Switcher<S> {
         PRIOR_RHS_PER_IMPLICIT_STEP * self.seconds_per_rhs() + lu_flops * PRIOR_SECONDS_PER_FLOP
     }
 
+    /// Expected seconds per explicit step: measured on capped steps once
+    /// some were timed, else its right-hand-side calls at the measured
+    /// time per call.
     fn explicit_step_seconds(&self) -> f64 {
-        self.explicit_cost.rhs_per_step().unwrap_or(6.0) * self.seconds_per_rhs()
+        self.explicit_cost.seconds_per_step().unwrap_or_else(|| {
+            self.explicit_cost.rhs_per_step().unwrap_or(6.0) * self.seconds_per_rhs()
+        })
     }
 
     #[allow(clippy::too_many_arguments)]
@@ -390,7 +418,10 @@ impl<S: System> Switcher<S> {
             let h_pred = h_next.max(self.h_uncapped).max(self.h_implicit_seen);
             let explicit_rate = self.explicit_step_seconds() / h_explicit;
             let implicit_rate = self.implicit_step_seconds() / h_pred.max(h_explicit);
-            let probe = self.capped_run >= self.probe_after;
+            let probe = self.capped_run >= self.probe_after
+                && self
+                    .rho_left_dearer
+                    .is_none_or(|r| s.rho >= PROBE_AGAIN_GROWTH * r);
             if implicit_rate >= explicit_rate && !probe {
                 return None;
             }
@@ -406,27 +437,47 @@ impl<S: System> Switcher<S> {
         } else {
             let region = current_region(standby_method, standby_order.max(1))?;
             let h_now = report.h.abs();
-            let hc = critical_step(region, s);
+            let mut s = s;
+            let mut hc = critical_step(region, s);
             let fits = hc.is_none_or(|hc| h_now <= th.return_margin * hc);
             self.fitting_run = if fits {
                 self.fitting_run + RETURN_CHECK_EVERY
             } else {
                 0
             };
-            if self.since_switch < th.min_steps_between_switches {
+            if self.since_switch < EARLY_RETURN_STEPS.min(th.min_steps_between_switches) {
                 return None;
             }
-            let h_explicit = hc.map_or(h_next, |hc| h_next.min(th.cap_safety * hc));
-            let explicit_rate = self.explicit_step_seconds() / h_explicit;
+            let mut h_explicit = hc.map_or(h_next, |hc| h_next.min(th.cap_safety * hc));
+            let mut explicit_rate = self.explicit_step_seconds() / h_explicit;
             let implicit_rate = self.implicit_step_seconds() / h_now.max(h_next);
-            let reason = if self.fitting_run >= th.fitting_steps_to_return
+            let measured = self.implicit_cost.seconds_per_step().is_some();
+            let m = self.monitor.as_mut()?;
+            if explicit_rate < implicit_rate && m.age() >= RETURN_CHECK_EVERY {
+                // A return looks worthwhile, but the implicit steps are long
+                // and the estimate may predate a growth of the stiffness:
+                // decide on a fresh one (a few right-hand-side calls).
+                m.estimate(p, active.as_ref(), stats);
+                s = m.latest()?;
+                hc = critical_step(region, s);
+                h_explicit = hc.map_or(h_next, |hc| h_next.min(th.cap_safety * hc));
+                explicit_rate = self.explicit_step_seconds() / h_explicit;
+                if !hc.is_none_or(|hc| h_now <= th.return_margin * hc) {
+                    self.fitting_run = 0;
+                }
+            }
+            let settled = self.since_switch >= th.min_steps_between_switches;
+            let reason = if settled
+                && self.fitting_run >= th.fitting_steps_to_return
                 && explicit_rate <= implicit_rate
             {
                 SwitchReason::NonStiffAgain
-            } else if self.implicit_cost.seconds_per_step().is_some()
-                && implicit_rate > COSTLIER_FACTOR * explicit_rate
+            } else if measured
+                && ((settled && implicit_rate > COSTLIER_FACTOR * explicit_rate)
+                    || implicit_rate > CLEARLY_DEARER_FACTOR * explicit_rate)
             {
                 self.probe_after = self.probe_after.saturating_mul(2);
+                self.rho_left_dearer = Some(s.rho);
                 SwitchReason::ExplicitCheaper
             } else {
                 return None;
