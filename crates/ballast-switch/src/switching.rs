@@ -10,13 +10,21 @@
 //! `min_steps_between_switches` steps separate two switches.
 //!
 //! Costs per unit time are `seconds per step / h`, from measured
-//! quantities: the time per right-hand-side call (timed during the
-//! spectral estimates), each scheme's right-hand-side calls per step (from
-//! the counters), and, once the implicit scheme has run, its measured time
-//! per step (which includes Jacobians and factorisations). Before the
-//! implicit scheme has run once, its step is predicted as
-//! `PRIOR_RHS_PER_IMPLICIT_STEP` calls plus a dense LU at
-//! `PRIOR_SECONDS_PER_FLOP`; after the first switch measurements replace the prior.
+//! quantities: the time of the explicit steps the cap holds (one in
+//! `TIME_EVERY` is timed; before any is, its right-hand-side calls per step
+//! at the time per call measured during the spectral estimates), and, once
+//! the implicit scheme has run, its measured time per step (which includes
+//! Jacobians and factorisations). Before the implicit scheme has run once,
+//! its step is predicted as `PRIOR_RHS_PER_IMPLICIT_STEP` calls plus a
+//! dense LU at `PRIOR_SECONDS_PER_FLOP`; after the first switch
+//! measurements replace the prior.
+//!
+//! A long held run triggers a trial switch even when the prediction does
+//! not favour it; a trial measured dearer switches back and lengthens the
+//! run needed for the next one, unless the stiffness has doubled since. A
+//! return to the explicit scheme is decided on a fresh spectral estimate
+//! (the implicit steps are long, and the stiffness may have grown since the
+//! last one).
 
 use std::time::Instant;
 
@@ -42,24 +50,20 @@ const PRIOR_SECONDS_PER_FLOP: f64 = 1e-9;
 /// when the predicted costs do not favour it (the implicit step cannot be
 /// predicted well from explicit steps held at the stability limit); the
 /// implicit scheme's cost is then measured. Each trial that turns out
-/// dearer than the explicit scheme doubles the run needed before the next.
+/// dearer than the explicit scheme lengthens the run needed before the
+/// next (see `PROBE_BACKOFF`).
 const PROBE_AFTER_CAPPED_STEPS: usize = 15;
 
 /// The implicit scheme is switched away from when its measured cost per
 /// unit time exceeds the capped explicit scheme's by this factor.
 const COSTLIER_FACTOR: f64 = 1.2;
 
-/// A trial that turns out this many times dearer per unit time than the
-/// capped explicit scheme ends after `EARLY_RETURN_STEPS` implicit steps,
-/// before the usual `min_steps_between_switches`: the measurement is
-/// clear, and every further implicit step is a loss.
-const CLEARLY_DEARER_FACTOR: f64 = 2.0;
-const EARLY_RETURN_STEPS: usize = 10;
-
-/// After the implicit scheme was measured dearer and left, a new trial
-/// needs the spectral radius to have grown by this factor since: the
-/// implicit scheme's advantage grows with the stiffness, and without such
-/// growth a new trial would only measure the same loss again.
+/// After the implicit scheme was measured dearer and left, the held run
+/// needed before the next trial grows by `PROBE_BACKOFF`, unless the
+/// spectral radius has grown by `PROBE_AGAIN_GROWTH` since: the implicit
+/// scheme's advantage grows with the stiffness (and with the smoothness of
+/// the solution, which only a trial measures).
+const PROBE_BACKOFF: usize = 4;
 const PROBE_AGAIN_GROWTH: f64 = 2.0;
 
 /// One implicit step in this many is timed (reading the clock costs tens
@@ -418,10 +422,11 @@ impl<S: System> Switcher<S> {
             let h_pred = h_next.max(self.h_uncapped).max(self.h_implicit_seen);
             let explicit_rate = self.explicit_step_seconds() / h_explicit;
             let implicit_rate = self.implicit_step_seconds() / h_pred.max(h_explicit);
+            let stiffer = self
+                .rho_left_dearer
+                .is_some_and(|r| s.rho >= PROBE_AGAIN_GROWTH * r);
             let probe = self.capped_run >= self.probe_after
-                && self
-                    .rho_left_dearer
-                    .is_none_or(|r| s.rho >= PROBE_AGAIN_GROWTH * r);
+                || (stiffer && self.capped_run >= PROBE_AFTER_CAPPED_STEPS);
             if implicit_rate >= explicit_rate && !probe {
                 return None;
             }
@@ -445,12 +450,14 @@ impl<S: System> Switcher<S> {
             } else {
                 0
             };
-            if self.since_switch < EARLY_RETURN_STEPS.min(th.min_steps_between_switches) {
+            if self.since_switch < th.min_steps_between_switches {
                 return None;
             }
             let mut h_explicit = hc.map_or(h_next, |hc| h_next.min(th.cap_safety * hc));
             let mut explicit_rate = self.explicit_step_seconds() / h_explicit;
-            let implicit_rate = self.implicit_step_seconds() / h_now.max(h_next);
+            // The step just taken, not the proposal: proposals of an implicit
+            // scheme are often cut back (Newton, rejections).
+            let implicit_rate = self.implicit_step_seconds() / h_now;
             let measured = self.implicit_cost.seconds_per_step().is_some();
             let m = self.monitor.as_mut()?;
             if explicit_rate < implicit_rate && m.age() >= RETURN_CHECK_EVERY {
@@ -466,17 +473,12 @@ impl<S: System> Switcher<S> {
                     self.fitting_run = 0;
                 }
             }
-            let settled = self.since_switch >= th.min_steps_between_switches;
-            let reason = if settled
-                && self.fitting_run >= th.fitting_steps_to_return
+            let reason = if self.fitting_run >= th.fitting_steps_to_return
                 && explicit_rate <= implicit_rate
             {
                 SwitchReason::NonStiffAgain
-            } else if measured
-                && ((settled && implicit_rate > COSTLIER_FACTOR * explicit_rate)
-                    || implicit_rate > CLEARLY_DEARER_FACTOR * explicit_rate)
-            {
-                self.probe_after = self.probe_after.saturating_mul(2);
+            } else if measured && implicit_rate > COSTLIER_FACTOR * explicit_rate {
+                self.probe_after = self.probe_after.saturating_mul(PROBE_BACKOFF);
                 self.rho_left_dearer = Some(s.rho);
                 SwitchReason::ExplicitCheaper
             } else {
