@@ -146,8 +146,12 @@ fn combine_fixed<const T: usize>(
     out: &mut [f64],
 ) {
     let n = out.len();
-    let c: [f64; T] = std::array::from_fn(|t| h * terms[t].1);
-    let ks: [&[f64]; T] = std::array::from_fn(|t| &k[terms[t].0][..n]);
+    let mut c = [0.0; T];
+    let mut ks: [&[f64]; T] = [&[]; T];
+    for t in 0..T {
+        c[t] = h * terms[t].1;
+        ks[t] = &k[terms[t].0][..n];
+    }
     match base {
         Some(b) => {
             let b = &b[..n];

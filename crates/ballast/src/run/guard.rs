@@ -13,10 +13,17 @@ use ballast_core::{Jacobian, Structure, System};
 #[inline]
 pub(crate) fn all_finite(v: &[f64]) -> bool {
     // x * 0 is 0 for finite x and NaN otherwise. Short vectors (the common
-    // case of a cheap right-hand side): one branch-free sum. Long ones:
-    // eight lanes, which vectorise.
-    if v.len() < 16 {
-        return v.iter().fold(0.0f64, |acc, &x| acc + x * 0.0) == 0.0;
+    // case of a cheap right-hand side): one branch-free sum, written out up
+    // to four components (a loop costs more than the check there). Long
+    // ones: eight lanes, which vectorise.
+    match *v {
+        [] => return true,
+        [a] => return a * 0.0 == 0.0,
+        [a, b] => return a * 0.0 + b * 0.0 == 0.0,
+        [a, b, c] => return a * 0.0 + b * 0.0 + c * 0.0 == 0.0,
+        [a, b, c, d] => return (a * 0.0 + b * 0.0) + (c * 0.0 + d * 0.0) == 0.0,
+        _ if v.len() < 16 => return v.iter().fold(0.0f64, |acc, &x| acc + x * 0.0) == 0.0,
+        _ => {}
     }
     let mut acc = [0.0f64; 8];
     let chunks = v.chunks_exact(8);
