@@ -459,11 +459,17 @@ impl<S: System> Switcher<S> {
             // scheme are often cut back (Newton, rejections).
             let implicit_rate = self.implicit_step_seconds() / h_now;
             let measured = self.implicit_cost.seconds_per_step().is_some();
+            let fits_again = |run: usize, explicit_rate: f64| {
+                run >= th.fitting_steps_to_return && explicit_rate <= implicit_rate
+            };
+            let dearer =
+                |explicit_rate: f64| measured && implicit_rate > COSTLIER_FACTOR * explicit_rate;
             let m = self.monitor.as_mut()?;
-            if explicit_rate < implicit_rate && m.age() >= RETURN_CHECK_EVERY {
-                // A return looks worthwhile, but the implicit steps are long
-                // and the estimate may predate a growth of the stiffness:
-                // decide on a fresh one (a few right-hand-side calls).
+            let due = fits_again(self.fitting_run, explicit_rate) || dearer(explicit_rate);
+            if due && m.age() >= RETURN_CHECK_EVERY {
+                // A return is due, but the implicit steps are long and the
+                // estimate may predate a growth of the stiffness: decide on
+                // a fresh one (a few right-hand-side calls).
                 m.estimate(p, active.as_ref(), stats);
                 s = m.latest()?;
                 hc = critical_step(region, s);
@@ -473,11 +479,9 @@ impl<S: System> Switcher<S> {
                     self.fitting_run = 0;
                 }
             }
-            let reason = if self.fitting_run >= th.fitting_steps_to_return
-                && explicit_rate <= implicit_rate
-            {
+            let reason = if fits_again(self.fitting_run, explicit_rate) {
                 SwitchReason::NonStiffAgain
-            } else if measured && implicit_rate > COSTLIER_FACTOR * explicit_rate {
+            } else if dearer(explicit_rate) {
                 self.probe_after = self.probe_after.saturating_mul(PROBE_BACKOFF);
                 self.rho_left_dearer = Some(s.rho);
                 SwitchReason::ExplicitCheaper
