@@ -20,8 +20,10 @@
 //! measurements replace the prior.
 //!
 //! A long held run triggers a trial switch even when the prediction does
-//! not favour it; a trial measured dearer switches back and lengthens the
-//! run needed for the next one, unless the stiffness has doubled since. A
+//! not favour it; a trial measured dearer switches back (after 12 implicit
+//! steps when clearly dearer, else after `min_steps_between_switches`) and
+//! lengthens the run needed for the next one, unless the stiffness has
+//! doubled since. A
 //! return to the explicit scheme is decided on a fresh spectral estimate
 //! (the implicit steps are long, and the stiffness may have grown since the
 //! last one).
@@ -57,6 +59,16 @@ const PROBE_AFTER_CAPPED_STEPS: usize = 15;
 /// The implicit scheme is switched away from when its measured cost per
 /// unit time exceeds the capped explicit scheme's by this factor.
 const COSTLIER_FACTOR: f64 = 1.2;
+
+/// A trial that measures this many times dearer per unit time than the
+/// capped explicit scheme ends after `EARLY_RETURN_STEPS` implicit steps
+/// instead of `min_steps_between_switches`, once the implicit step has
+/// settled (the controller asks for less than `SETTLED_GROWTH` times the
+/// last step): just after a switch the implicit steps still grow from the
+/// explicit scheme's size and their cost per unit time says little.
+const CLEARLY_DEARER_FACTOR: f64 = 2.0;
+const EARLY_RETURN_STEPS: usize = 12;
+const SETTLED_GROWTH: f64 = 1.5;
 
 /// After the implicit scheme was measured dearer and left, the held run
 /// needed before the next trial grows by `PROBE_BACKOFF`, unless the
@@ -450,9 +462,10 @@ impl<S: System> Switcher<S> {
             } else {
                 0
             };
-            if self.since_switch < th.min_steps_between_switches {
+            if self.since_switch < EARLY_RETURN_STEPS.min(th.min_steps_between_switches) {
                 return None;
             }
+            let settled = self.since_switch >= th.min_steps_between_switches;
             let mut h_explicit = hc.map_or(h_next, |hc| h_next.min(th.cap_safety * hc));
             let mut explicit_rate = self.explicit_step_seconds() / h_explicit;
             // The step just taken, not the proposal: proposals of an implicit
@@ -460,10 +473,14 @@ impl<S: System> Switcher<S> {
             let implicit_rate = self.implicit_step_seconds() / h_now;
             let measured = self.implicit_cost.seconds_per_step().is_some();
             let fits_again = |run: usize, explicit_rate: f64| {
-                run >= th.fitting_steps_to_return && explicit_rate <= implicit_rate
+                settled && run >= th.fitting_steps_to_return && explicit_rate <= implicit_rate
             };
-            let dearer =
-                |explicit_rate: f64| measured && implicit_rate > COSTLIER_FACTOR * explicit_rate;
+            let clearly = !settled && h_next <= SETTLED_GROWTH * h_now;
+            let dearer = |explicit_rate: f64| {
+                measured
+                    && ((settled && implicit_rate > COSTLIER_FACTOR * explicit_rate)
+                        || (clearly && implicit_rate > CLEARLY_DEARER_FACTOR * explicit_rate))
+            };
             let m = self.monitor.as_mut()?;
             let due = fits_again(self.fitting_run, explicit_rate) || dearer(explicit_rate);
             if due && m.age() >= RETURN_CHECK_EVERY {
