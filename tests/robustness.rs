@@ -86,6 +86,9 @@ fn bad_input_table() {
     input!("output time NaN", span, &y, o().output_at(vec![f64::NAN]) => Error::OutputTimeOutsideSpan { .. });
     input!("breakpoint NaN", span, &y, o().breakpoints(vec![0.5, f64::NAN]) => Error::NonFiniteBreakpoint { .. });
     input!("newton iters 0", span, &y, o().max_newton_iters(0) => Error::InvalidSetup(_));
+    input!("refresh rate 0", span, &y, o().jacobian_refresh_rate(0.0) => Error::InvalidSetup(_));
+    input!("refresh rate NaN", span, &y, o().jacobian_refresh_rate(f64::NAN) => Error::InvalidSetup(_));
+    input!("refresh rate 2", span, &y, o().jacobian_refresh_rate(2.0) => Error::InvalidSetup(_));
     input!("pattern size", span, &[1.0, 2.0], o().jacobian_structure(Structure::Sparse(SparsityPattern::diagonal(3))) => Error::JacobianDimension { state: 2, jacobian: 3 });
     input!("full band", span, &[1.0, 2.0], o().jacobian_structure(Structure::Banded { lower: 2, upper: 2 }) => Error::InvalidSetup(_));
     input!("analytic Jacobian missing", span, &y, o().method(Method::RadauIIA5).jacobian(JacobianSource::Analytic) => Error::InvalidSetup(_));

@@ -150,6 +150,17 @@ impl Options {
         self
     }
 
+    /// Newton contraction rate above which an implicit scheme evaluates a
+    /// new Jacobian at the next step (default `1e-3`, common practice:
+    /// a fresh Jacobian whenever Newton is not converging very fast). Raise
+    /// it towards `0.1` when Jacobians are expensive (finite differences on
+    /// a large system): fewer Jacobians and factorisations, a few more
+    /// Newton iterations. Must lie in `(0, 1]`.
+    pub fn jacobian_refresh_rate(mut self, rate: f64) -> Self {
+        self.implicit.jacobian_refresh_rate = rate;
+        self
+    }
+
     /// Turns the stability cap of explicit schemes on (default) or off.
     pub fn stability_cap(mut self, on: bool) -> Self {
         self.stability_cap = on;

@@ -107,6 +107,12 @@ fn validate_steps(opts: &Options) -> Result<(), Error> {
             "max_newton_iters must be at least 1".into(),
         ));
     }
+    let rate = opts.implicit.jacobian_refresh_rate;
+    if !(rate > 0.0 && rate <= 1.0) {
+        return Err(Error::InvalidSetup(format!(
+            "jacobian_refresh_rate must lie in (0, 1], not {rate}"
+        )));
+    }
     Ok(())
 }
 
