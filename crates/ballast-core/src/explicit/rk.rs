@@ -36,6 +36,9 @@ pub struct ExplicitRk {
     /// The non-zero weights of each row of `A` (with their stage indices),
     /// then of `b`, then of `e` if the tableau has an estimate.
     terms: Vec<Vec<(usize, f64)>>,
+    /// The stiffness pair `(i, j)` and the non-zero `a_il - a_jl` (at most
+    /// `MAX_STAGES` of them), for the free stage estimate.
+    stiffness: Option<StiffnessPair>,
     h: f64,
 }
 
@@ -43,7 +46,6 @@ impl ExplicitRk {
     /// A scheme for a system of dimension `n`; all work arrays are allocated here.
     pub fn new(tab: &'static Tableau, n: usize) -> Self {
         let s = tab.stages();
-        debug_assert!(s <= MAX_STAGES, "tableau larger than MAX_STAGES");
         let extra = usize::from(!tab.fsal);
         Self {
             tab,
@@ -61,6 +63,7 @@ impl ExplicitRk {
                 .chain(tab.e)
                 .map(non_zero)
                 .collect(),
+            stiffness: stiffness_weights(tab),
             h: 0.0,
         }
     }
@@ -91,9 +94,33 @@ impl ExplicitRk {
     }
 }
 
-/// Stages of the largest tableau this engine runs (the free stiffness
-/// estimate gathers at most this many stage slices).
+/// Most terms the free stiffness estimate gathers (every tableau of this
+/// engine has fewer stages; a larger one simply has no free estimate).
 const MAX_STAGES: usize = 16;
+
+/// Two stages `(i, j)` at one node and the non-zero `(l, a_il - a_jl)`.
+type StiffnessPair = (usize, usize, Vec<(usize, f64)>);
+
+/// The stiffness pair of `tab` with the non-zero `a_il - a_jl`, when the
+/// pair is usable: two distinct later stages, at most `MAX_STAGES` terms.
+fn stiffness_weights(tab: &Tableau) -> Option<StiffnessPair> {
+    let (i, j) = tab.stiffness_pair?;
+    let a = tab.a;
+    if j == 0 || i >= a.len() || j >= a.len() {
+        return None;
+    }
+    let (ai, aj) = (a[i], a[j]);
+    let w: Vec<(usize, f64)> = (0..ai.len().max(aj.len()))
+        .map(|l| {
+            (
+                l,
+                ai.get(l).copied().unwrap_or(0.0) - aj.get(l).copied().unwrap_or(0.0),
+            )
+        })
+        .filter(|&(_, w)| w != 0.0)
+        .collect();
+    (w.len() <= MAX_STAGES).then_some((i, j, w))
+}
 
 /// The non-zero weights of `row`, with their stage indices.
 fn non_zero(row: &[f64]) -> Vec<(usize, f64)> {
@@ -270,27 +297,18 @@ impl SchemeState for ExplicitRk {
     }
 
     fn stage_spectral_estimate(&self) -> Option<f64> {
-        let (i, j) = self.tab.stiffness_pair?;
-        let a = self.tab.a;
-        if j == 0 || i >= a.len() || j >= a.len() {
-            return None;
-        }
+        let (i, j, weights) = self.stiffness.as_ref()?;
         // Y_i - Y_j = h sum_l (a_il - a_jl) k_l, computed without buffers:
-        // the non-zero weights and their stage slices gathered once.
-        let (ai, aj) = (a[i], a[j]);
+        // the weights scaled and their stage slices gathered once.
         let n = self.n;
         let mut ws = [0.0; MAX_STAGES];
         let mut ks: [&[f64]; MAX_STAGES] = [&[]; MAX_STAGES];
-        let mut terms = 0;
-        for l in 0..ai.len().max(aj.len()).min(MAX_STAGES) {
-            let w = ai.get(l).copied().unwrap_or(0.0) - aj.get(l).copied().unwrap_or(0.0);
-            if w != 0.0 {
-                ws[terms] = self.h * w;
-                ks[terms] = &self.stage(l)[..n];
-                terms += 1;
-            }
+        for (t, &(l, w)) in weights.iter().enumerate() {
+            ws[t] = self.h * w;
+            ks[t] = &self.stage(l)[..n];
         }
-        let (ki, kj) = (&self.stage(i)[..n], &self.stage(j)[..n]);
+        let terms = weights.len();
+        let (ki, kj) = (&self.stage(*i)[..n], &self.stage(*j)[..n]);
         let (mut num, mut den) = (0.0, 0.0);
         for m in 0..n {
             let dk = ki[m] - kj[m];
