@@ -437,3 +437,63 @@ fn ros3p_error_estimate_is_blind_on_a_linear_problem() {
     let err = decay_with(Method::Ros3p);
     assert!(err > 1e-3, "error {err:e}: ROS3P now controls its error");
 }
+
+/// The final-state-only output keeps the state after the last accepted
+/// step: bit for bit the last point of the same run with every step kept,
+/// on a run that ends normally, one through a breakpoint and one that fails
+/// midway (f is NaN from t = 1). Self-consistency of the two output modes.
+#[test]
+fn final_state_output_is_the_last_kept_step() {
+    let sick = |t: f64, y: &[f64], dy: &mut [f64]| {
+        dy[0] = if t >= 1.0 { f64::NAN } else { -y[0] };
+        dy[1] = y[0] - 2.0 * y[1];
+    };
+    let healthy = |_t: f64, y: &[f64], dy: &mut [f64]| {
+        dy[0] = -y[0];
+        dy[1] = y[0] - 2.0 * y[1];
+    };
+    for method in [
+        Method::DormandPrince54,
+        Method::RadauIIA5,
+        Method::Bdf,
+        Method::default(),
+    ] {
+        let base = Options::default().rtol(1e-8).atol(1e-10).method(method);
+        for (case, opts) in [
+            ("plain", base.clone()),
+            ("breakpoint", base.clone().breakpoints(vec![0.7])),
+        ] {
+            let run = |output| {
+                integrate(
+                    healthy,
+                    (0.0, 2.0),
+                    &[1.0, 0.0],
+                    &opts.clone().output(output),
+                )
+            };
+            let last = run(Output::Final).unwrap_or_else(|e| panic!("{method} {case}: {e}"));
+            let all = run(Output::Steps).unwrap_or_else(|e| panic!("{method} {case}: {e}"));
+            assert_eq!(last.t_final(), all.t_final(), "{method} {case}");
+            assert_eq!(last.y_final(), all.y_final(), "{method} {case}");
+            assert_eq!(
+                last.y_final(),
+                all.iter().last().unwrap().1,
+                "{method} {case}"
+            );
+        }
+        let failed = |output| {
+            integrate(sick, (0.0, 2.0), &[1.0, 0.0], &base.clone().output(output))
+                .expect_err("NaN from t = 1")
+                .into_partial()
+                .expect("a partial solution")
+        };
+        let (last, all) = (failed(Output::Final), failed(Output::Steps));
+        assert_eq!(last.t_final(), all.t_final(), "{method} failing");
+        assert_eq!(last.y_final(), all.y_final(), "{method} failing");
+        assert_eq!(
+            last.y_final(),
+            all.iter().last().unwrap().1,
+            "{method} failing"
+        );
+    }
+}

@@ -53,6 +53,17 @@ pub struct StepReport {
     pub reached_limit: bool,
 }
 
+/// The step just accepted, as the switching logic needs it: passed by
+/// value in two registers (the full [`StepReport`] is built after the
+/// switching logic has run and written once, straight into the result).
+#[derive(Clone, Copy, Debug)]
+pub(crate) struct TakenStep {
+    /// The step taken (signed).
+    pub(crate) h: f64,
+    /// Whether the stability cap set the step size.
+    pub(crate) capped: bool,
+}
+
 /// Drives one scheme, or a switching pair, over a time span.
 pub struct Controller<S: System> {
     problem: Problem<S>,
@@ -243,6 +254,8 @@ impl<S: System> Controller<S> {
     /// Takes one accepted step towards `t_limit`, never past it.
     pub fn step(&mut self, t_limit: f64) -> Result<StepReport, RunFailure> {
         let mut failures = 0usize;
+        // The last attempt failed on a non-finite value.
+        let mut last_non_finite = false;
         loop {
             let t = self.active.t();
             let remaining = (t_limit - t) * self.direction;
@@ -278,7 +291,12 @@ impl<S: System> Controller<S> {
             }
             let h_floor = self.cfg.min_step.max(16.0 * f64::EPSILON * t.abs());
             if h_mag < h_floor && !reached_limit {
-                return Err(RunFailure::StepSizeTooSmall { t, h: h_mag });
+                // Steps cut short by non-finite values: name the cause.
+                return Err(if last_non_finite {
+                    RunFailure::NonFiniteRhs { t, h: h_mag }
+                } else {
+                    RunFailure::StepSizeTooSmall { t, h: h_mag }
+                });
             }
             let h = self.direction * h_mag;
             let result = self.active.attempt(&mut self.problem, h, &self.norm);
@@ -308,17 +326,12 @@ impl<S: System> Controller<S> {
                             proposal
                         };
                     }
-                    let report = StepReport {
-                        t_prev: self.active.t_prev(),
-                        t: self.active.t(),
-                        h,
-                        capped,
-                        reached_limit,
-                    };
+                    // Every scheme advances its time by exactly `h`.
+                    debug_assert_eq!(self.active.t(), t + h);
                     if let Some(next) = self.switcher.after_accept(
                         &mut self.problem,
                         &mut self.active,
-                        &report,
+                        TakenStep { h, capped },
                         self.h,
                         &self.cfg,
                         &mut self.stats,
@@ -326,9 +339,16 @@ impl<S: System> Controller<S> {
                         self.pi.reset();
                         self.h = next;
                     }
-                    return Ok(report);
+                    return Ok(StepReport {
+                        t_prev: t,
+                        t: t + h,
+                        h,
+                        capped,
+                        reached_limit,
+                    });
                 }
                 Ok(a) => {
+                    last_non_finite = false;
                     self.active.reject();
                     self.stats.rejected += 1;
                     let q = self.active.error_order();
@@ -340,6 +360,7 @@ impl<S: System> Controller<S> {
                     self.switcher.after_reject();
                 }
                 Err(failure) => {
+                    last_non_finite = matches!(failure, StepFailure::NonFinite);
                     self.active.reject();
                     self.stats.failed_attempts += 1;
                     failures += 1;

@@ -34,7 +34,7 @@ use ballast_core::{Method, Problem, Scheme, SchemeState, Structure, System};
 use num_complex::Complex64;
 
 use crate::config::ControlConfig;
-use crate::controller::{build_scheme, ControlStats, StepReport};
+use crate::controller::{build_scheme, ControlStats, TakenStep};
 use crate::error::SetupError;
 use crate::monitor::{critical_step, current_region, Monitor, Spectrum};
 
@@ -309,7 +309,7 @@ impl<S: System> Switcher<S> {
         &mut self,
         p: &mut Problem<S>,
         active: &mut Box<dyn Scheme<S>>,
-        report: &StepReport,
+        report: TakenStep,
         h_next: f64,
         cfg: &ControlConfig,
         stats: &mut ControlStats,
@@ -399,7 +399,7 @@ impl<S: System> Switcher<S> {
         &mut self,
         p: &mut Problem<S>,
         active: &mut Box<dyn Scheme<S>>,
-        report: &StepReport,
+        report: TakenStep,
         h_next: f64,
         s: Spectrum,
         cfg: &ControlConfig,

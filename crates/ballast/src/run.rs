@@ -131,12 +131,19 @@ impl<'o, S: System> Run<'o, S> {
             stability_cap: opts.stability_cap,
             switching: opts.switching.clone(),
         };
-        let mut ctl =
-            Controller::new(Guarded::new(system), t0, &y0, t1, norm, cfg).map_err(|e| match e {
-                SetupError::NonFiniteInitialRhs { t } => Error::NonFiniteInitialRhs { t },
-                SetupError::FixedStepRequired(m) => Error::FixedStepRequired(m),
-                other => Error::InvalidSetup(other.to_string()),
-            })?;
+        let mut ctl = Controller::new(
+            Guarded::new(system, !opts.method.is_explicit()),
+            t0,
+            &y0,
+            t1,
+            norm,
+            cfg,
+        )
+        .map_err(|e| match e {
+            SetupError::NonFiniteInitialRhs { t } => Error::NonFiniteInitialRhs { t },
+            SetupError::FixedStepRequired(m) => Error::FixedStepRequired(m),
+            other => Error::InvalidSetup(other.to_string()),
+        })?;
 
         let mut out = OutputKeeper::new(&opts, n, t0, t1, &y0);
         let mut sol = Solution {
@@ -154,8 +161,13 @@ impl<'o, S: System> Run<'o, S> {
             events: Vec::new(),
         };
         let mut tracker = EventTracker::new(events, n);
+        // Without events the final state is always the scheme's current
+        // one (every exit happens right after an accepted step or a failed
+        // attempt, which leaves the state alone): it is copied once, at the
+        // end, instead of after every step.
+        let final_from_scheme = tracker.is_empty();
         if let Err(e) = tracker.start(t0, &y0) {
-            finish(&mut sol, &ctl, &mut out);
+            finish(&mut sol, &ctl, &mut out, final_from_scheme);
             return Err(event_error(e, sol));
         }
         let mut breakpoints = Breakpoints::new(&opts.breakpoints, t0, t1);
@@ -176,7 +188,7 @@ impl<'o, S: System> Run<'o, S> {
                 Ok(r) => r,
                 Err(failure) => {
                     let failure = diagnose(failure, &ctl);
-                    finish(&mut sol, &ctl, &mut out);
+                    finish(&mut sol, &ctl, &mut out, final_from_scheme);
                     return Err(run_error(failure, sol));
                 }
             };
@@ -199,7 +211,7 @@ impl<'o, S: System> Run<'o, S> {
                     }
                     Ok(None) => {}
                     Err(e) => {
-                        finish(&mut sol, &ctl, &mut out);
+                        finish(&mut sol, &ctl, &mut out, final_from_scheme);
                         return Err(event_error(e, sol));
                     }
                 }
@@ -213,7 +225,9 @@ impl<'o, S: System> Run<'o, S> {
             };
             out.record(report.t_prev, t_end, y_now, scheme);
             sol.t_final = t_end;
-            sol.y_final.copy_from_slice(y_now);
+            if !final_from_scheme {
+                sol.y_final.copy_from_slice(y_now);
+            }
             if let Some(obs) = observer.as_mut() {
                 let info = StepInfo {
                     t: t_end,
@@ -235,12 +249,12 @@ impl<'o, S: System> Run<'o, S> {
                 breakpoints.pop();
                 let y_here = ctl.y().to_vec();
                 if let Err(failure) = ctl.restart(restart_at, &y_here) {
-                    finish(&mut sol, &ctl, &mut out);
+                    finish(&mut sol, &ctl, &mut out, final_from_scheme);
                     return Err(run_error(failure, sol));
                 }
             }
         }
-        finish(&mut sol, &ctl, &mut out);
+        finish(&mut sol, &ctl, &mut out, final_from_scheme);
         Ok((sol, reason))
     }
 }
@@ -350,7 +364,15 @@ fn gather_stats<S: System>(ctl: &Controller<S>) -> Stats {
     }
 }
 
-fn finish<S: System>(sol: &mut Solution, ctl: &Controller<S>, out: &mut OutputKeeper) {
+fn finish<S: System>(
+    sol: &mut Solution,
+    ctl: &Controller<S>,
+    out: &mut OutputKeeper,
+    final_from_scheme: bool,
+) {
+    if final_from_scheme {
+        sol.y_final.copy_from_slice(ctl.y());
+    }
     sol.stats = gather_stats(ctl);
     sol.switches = ctl.switches().to_vec();
     out.finish(sol);

@@ -2,6 +2,14 @@
 //! analytic Jacobian hands back NaN or infinity, so a failed run can name
 //! the culprit instead of only the symptom (a step size that shrank to
 //! nothing, or a singular iteration matrix).
+//!
+//! The right-hand side is watched only when an implicit scheme may run:
+//! there a non-finite value hides behind a failed Newton iteration. An
+//! explicit scheme's error estimate turns any non-finite stage into a
+//! non-finite error, which the controller already reports as such, so
+//! explicit-only runs skip the check (on a three-equation right-hand side
+//! it cost about 5% of the run time, measured with perf on the overhead
+//! bench).
 
 use ballast_core::matrix::Storage;
 use ballast_core::{Jacobian, Structure, System};
@@ -43,6 +51,8 @@ pub(crate) fn all_finite(v: &[f64]) -> bool {
 #[derive(Debug)]
 pub(crate) struct Guarded<S> {
     inner: S,
+    /// Whether right-hand-side values are checked.
+    watch_rhs: bool,
     /// The right-hand side returned a non-finite value since [`Guarded::clear`].
     pub(crate) rhs_bad: bool,
     /// The latest analytic Jacobian held a non-finite value.
@@ -50,9 +60,11 @@ pub(crate) struct Guarded<S> {
 }
 
 impl<S> Guarded<S> {
-    pub(crate) fn new(inner: S) -> Self {
+    /// Wraps `inner`; `watch_rhs` turns the right-hand-side check on.
+    pub(crate) fn new(inner: S, watch_rhs: bool) -> Self {
         Self {
             inner,
+            watch_rhs,
             rhs_bad: false,
             jac_bad: false,
         }
@@ -65,10 +77,10 @@ impl<S> Guarded<S> {
 }
 
 impl<S: System> System for Guarded<S> {
-    #[inline]
+    #[inline(always)]
     fn rhs(&mut self, t: f64, y: &[f64], dydt: &mut [f64]) {
         self.inner.rhs(t, y, dydt);
-        if !all_finite(dydt) {
+        if self.watch_rhs && !all_finite(dydt) {
             self.rhs_bad = true;
         }
     }

@@ -62,7 +62,23 @@ impl OutputKeeper {
         }
     }
 
+    /// Keeps what the output mode asks for after an accepted step
+    /// (nothing for the final state only; checked inline, so that mode
+    /// costs no call per step).
+    #[inline]
     pub(crate) fn record(
+        &mut self,
+        t_prev: f64,
+        t: f64,
+        y: &[f64],
+        scheme: &dyn ballast_core::SchemeState,
+    ) {
+        if !matches!(self.mode, Output::Final) {
+            self.record_kept(t_prev, t, y, scheme);
+        }
+    }
+
+    fn record_kept(
         &mut self,
         t_prev: f64,
         t: f64,
