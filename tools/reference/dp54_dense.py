@@ -1,7 +1,7 @@
 """Expand the Dormand-Prince 5(4) continuous extension into monomial weights.
 
 Source: Hairer, Norsett and Wanner, Solving ODEs I, 2nd ed., section II.6
-(dense output of DOPRI5): with y1 - y0 = h sum b_i k_i and the coefficients
+(dense output of Dormand–Prince 5(4)): with y1 - y0 = h sum b_i k_i and the coefficients
 d_i of the book,
 
   y(theta) = y0 + theta*D + theta(1-theta)*(h k1 - D)

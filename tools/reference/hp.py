@@ -202,7 +202,7 @@ def radau(f, t0, y0, touts, rtol, atol, s=7, h0="1e-6"):
     """Values of y at `touts` by Radau IIA (s stages) with Richardson control.
 
     Newton starts from the collocation polynomial of the previous step
-    (as RADAU5 does), and the two half steps start from the polynomial of
+    (HNW II, IV.8, starting values), and the two half steps start from the polynomial of
     the full step, so most solves take two to four iterations."""
     rtol, atol = mpf(rtol), mpf(atol)
     c, A = radau_coefficients(s)

@@ -15,7 +15,7 @@ import csv
 import glob
 import os
 
-SWITCHING = "switching DP5/Radau5"
+SWITCHING = "switching DP5/Radau IIA"
 
 
 def best(rows, rtol):

@@ -1,6 +1,6 @@
 //! Building a scheme for a method: the one place that maps [`Method`] to code.
 
-use crate::explicit::{tableau, Dop853, ExplicitRk};
+use crate::explicit::{tableau, Dp853, ExplicitRk};
 use crate::implicit;
 use crate::method::Method;
 use crate::options::SchemeOptions;
@@ -44,9 +44,9 @@ pub fn build<S: System>(
         Method::BogackiShampine32 => rk(&tableau::BOGACKI_SHAMPINE_32),
         Method::DormandPrince54 => rk(&tableau::DORMAND_PRINCE_54),
         Method::Tsitouras54 => rk(&tableau::TSITOURAS_54),
-        Method::DormandPrince853 => Ok(Box::new(
-            Dop853::new(n).with_dense_output(opts.dense_output),
-        )),
+        Method::DormandPrince853 => {
+            Ok(Box::new(Dp853::new(n).with_dense_output(opts.dense_output)))
+        }
         Method::Adams => Ok(Box::new(crate::multistep::Adams::new(n))),
         Method::Bdf => Ok(Box::new(crate::multistep::Bdf::new(
             n,
@@ -58,7 +58,7 @@ pub fn build<S: System>(
         Method::TrBdf2 => dirk(&implicit::tableau::TR_BDF2),
         Method::Esdirk43 => dirk(&implicit::tableau::ESDIRK_43),
         Method::RadauIIA5 => Ok(Box::new(
-            implicit::Radau5::new(n, structure, &opts.implicit)
+            implicit::RadauIia5::new(n, structure, &opts.implicit)
                 .map_err(BuildError::InvalidOptions)?,
         )),
         Method::Ros3p => Ok(Box::new(

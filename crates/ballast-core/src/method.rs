@@ -104,7 +104,7 @@ impl Method {
             Method::Rosenbrock32 => "Rosenbrock 3(2)",
             Method::Adams => "Adams",
             Method::Bdf => "BDF",
-            Method::Switching(SwitchPair::DormandPrinceRadau) => "switching DP5/Radau5",
+            Method::Switching(SwitchPair::DormandPrinceRadau) => "switching DP5/Radau IIA",
             Method::Switching(SwitchPair::AdamsBdf) => "switching Adams/BDF",
         }
     }

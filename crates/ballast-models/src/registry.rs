@@ -353,7 +353,7 @@ pub fn get(name: &str) -> Option<Case> {
         ),
         "vanderpol-mu1000" => computed(
             "vanderpol-mu1000",
-            "Van der Pol, mu = 1000, y0 (2, 0), [0, 3000] (HNW II, IV.1; MATLAB vdp1000)",
+            "Van der Pol, mu = 1000, y0 (2, 0), [0, 3000] (HNW II, IV.1)",
             Model::VanDerPolMu(VanDerPolMu::new(1000.0)),
             VanDerPolMu::new(1000.0).initial_value(),
             &reference::VANDERPOL_MU1000,

@@ -61,8 +61,8 @@ impl System for VanDerPol {
 }
 
 /// Van der Pol's equation in the unscaled form with a large `mu`
-/// (HNW II, Section IV.1; the `mu = 1000` case is MATLAB's `vdp1000`
-/// demonstration, from memory):
+/// (HNW II, Section IV.1; `mu = 1000` on `[0, 3000]` from `y0 = (2, 0)`
+/// is a common stiff test case, common practice):
 ///
 /// ```text
 /// y1' = y2

@@ -80,7 +80,7 @@ where
 /// lower estimate of `||J||`, which after a few steps at the stability limit
 /// points along the dominant eigenvector. No extra `f` call. Hairer and
 /// Wanner, *Solving ODEs II*, section IV.2, "Automatic stiffness detection"
-/// (for DOPRI5 the stages 6 and 7, both at `c = 1`; compare `h rho` with
+/// (for Dormand–Prince 5(4) the stages 6 and 7, both at `c = 1`; compare `h rho` with
 /// the stability boundary 3.3). Returns `None` when the lengths differ, the
 /// stages coincide, or a value is not finite.
 ///

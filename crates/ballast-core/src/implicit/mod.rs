@@ -1,7 +1,7 @@
 //! Implicit one-step methods: diagonally and fully implicit Runge–Kutta, Rosenbrock.
 //!
 //! - [`Dirk`] — backward Euler, trapezoid, TR-BDF2, ESDIRK 4(3);
-//! - [`Radau5`] — Radau IIA of order 5 with the real/complex splitting;
+//! - [`RadauIia5`] — Radau IIA of order 5 with the real/complex splitting;
 //! - [`Rosenbrock`] — ROS3P and a four-stage L-stable Rosenbrock 3(2).
 //!
 //! All share the [`iteration::IterationMatrix`] cache (Jacobian reuse,
@@ -27,13 +27,13 @@
 pub mod dirk;
 pub mod hermite;
 pub mod iteration;
-pub mod radau5;
 pub mod radau_constants;
+pub mod radau_iia5;
 pub mod rosenbrock;
 pub mod tableau;
 
 pub use dirk::Dirk;
-pub use radau5::Radau5;
+pub use radau_iia5::RadauIia5;
 pub use rosenbrock::Rosenbrock;
 
 #[cfg(test)]

@@ -160,7 +160,7 @@ pub fn one_step_function(method: Method) -> Option<StabilityFunction> {
         Method::DormandPrince54 => explicit(&ex::DORMAND_PRINCE_54),
         Method::Tsitouras54 => explicit(&ex::TSITOURAS_54),
         Method::DormandPrince853 => {
-            use crate::explicit::dop853_tableau as d;
+            use crate::explicit::dp853_tableau as d;
             Some(StabilityFunction::from_explicit_rows(
                 &d::A[..d::STEP_STAGES],
                 &d::B,

@@ -158,7 +158,7 @@ fn rk_run(a: &[&[f64]], b: &[f64], lambda: Complex64, h: f64, steps: usize) -> f
 type ExplicitRk = (Method, &'static [&'static [f64]], &'static [f64]);
 
 fn explicit_methods() -> Vec<ExplicitRk> {
-    use crate::explicit::dop853_tableau as d;
+    use crate::explicit::dp853_tableau as d;
     use crate::explicit::tableau as ex;
     [
         &ex::FORWARD_EULER,

@@ -6,7 +6,7 @@
 use super::problems::plain_norm;
 use super::{dop853_rows, METHODS, TABLEAUX};
 use crate::build::build;
-use crate::explicit::dop853_tableau as dop;
+use crate::explicit::dp853_tableau as dop;
 use crate::method::Method;
 use crate::options::SchemeOptions;
 use crate::problem::Problem;
@@ -92,7 +92,7 @@ fn low_order_methods_multiply_by_the_truncated_exponential() {
 #[test]
 fn dormand_prince_54_has_its_published_stability_polynomial() {
     // R(z) = 1 + z + z^2/2 + z^3/6 + z^4/24 + z^5/120 + z^6/600, from memory
-    // of Hairer and Wanner II, IV.2 (the stability function of DOPRI5).
+    // of Hairer and Wanner II, IV.2 (the stability function of Dormand–Prince 5(4)).
     for lambda in lambdas() {
         let z = H * lambda;
         let want = truncated_exp(z, 5) + z.powi(6) / 600.0;

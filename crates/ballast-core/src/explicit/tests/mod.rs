@@ -10,7 +10,7 @@ mod problems;
 mod schemes;
 mod trees;
 
-use super::dop853_tableau as dop;
+use super::dp853_tableau as dop;
 use super::tableau::{self, Tableau};
 use crate::method::Method;
 

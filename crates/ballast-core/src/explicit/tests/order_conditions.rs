@@ -75,7 +75,7 @@ fn nodes_are_row_sums_and_fsal_rows_equal_weights() {
         let s: f64 = row.iter().sum();
         assert!(
             (s - dop::C[i]).abs() < 1e-13,
-            "DOP853 row {i}: {s} vs {}",
+            "Dormand–Prince 8(5,3) row {i}: {s} vs {}",
             dop::C[i]
         );
     }
@@ -140,7 +140,7 @@ fn dop853_weights_have_order_eight() {
     let trees = trees_up_to(9);
     let phi = stage_vectors(&trees, dop853_rows());
     let r = residuals(&trees, &phi, &dop::B, 9, |t| 1.0 / t.gamma);
-    assert_order("DOP853 b", &r, 8);
+    assert_order("Dormand–Prince 8(5,3) b", &r, 8);
 }
 
 #[test]
@@ -149,9 +149,9 @@ fn dop853_embedded_estimates_have_orders_five_and_three() {
     let trees = trees_up_to(6);
     let phi = stage_vectors(&trees, dop853_rows());
     let r5 = residuals(&trees, &phi, &dop::E5, 6, |_| 0.0);
-    assert_order("DOP853 e5", &r5, 5);
+    assert_order("Dormand–Prince 8(5,3) e5", &r5, 5);
     let r3 = residuals(&trees, &phi, &dop::E3, 4, |_| 0.0);
-    assert_order("DOP853 e3", &r3, 3);
+    assert_order("Dormand–Prince 8(5,3) e3", &r3, 3);
 }
 
 #[test]
@@ -166,7 +166,7 @@ fn dop853_dense_output_has_order_seven() {
         let r = residuals(&trees, &phi, &w, 8, |t| {
             theta.powi(t.order as i32) / t.gamma
         });
-        let what = format!("DOP853 dense at theta = {theta}");
+        let what = format!("Dormand–Prince 8(5,3) dense at theta = {theta}");
         if theta < 1.0 {
             assert_order(&what, &r, 7);
         } else {

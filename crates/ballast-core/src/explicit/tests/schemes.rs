@@ -5,7 +5,7 @@
 
 use super::problems::{distance, plain_norm, scheme, KEPLER_CIRCULAR};
 use crate::control::PiController;
-use crate::explicit::{tableau::TSITOURAS_54, Dop853, ExplicitRk};
+use crate::explicit::{tableau::TSITOURAS_54, Dp853, ExplicitRk};
 use crate::method::Method;
 use crate::norm::{Atol, ErrorNorm};
 use crate::problem::Problem;
@@ -21,7 +21,7 @@ fn dop853_work_per_step() {
     // plus 3 for the dense output (Hairer, Norsett and Wanner I, II.10 and II.6).
     for (dense, per_step) in [(true, 15), (false, 12)] {
         let mut p = Problem::new(linear(-1.0), 1);
-        let mut s = Dop853::new(1).with_dense_output(dense);
+        let mut s = Dp853::new(1).with_dense_output(dense);
         s.start(&mut p, 0.0, &[1.0]).unwrap();
         assert_eq!(p.counters.rhs_evals, 1);
         for _ in 0..4 {
@@ -55,7 +55,7 @@ fn dop853_without_dense_stages_falls_back_to_hermite() {
     let case = KEPLER_CIRCULAR;
     let err = |h: f64| {
         let mut p = Problem::new(case.rhs, 4);
-        let mut s = Dop853::new(4).with_dense_output(false);
+        let mut s = Dp853::new(4).with_dense_output(false);
         s.start(&mut p, 0.0, &(case.exact)(0.0)).unwrap();
         s.attempt(&mut p, h, &plain_norm(4)).unwrap();
         s.accept(&mut p);
@@ -75,13 +75,13 @@ fn stage_estimate_is_exact_for_a_scalar_linear_problem() {
     // quotient is |lambda| exactly (Hairer and Wanner II, IV.2).
     let lambda = -37.0;
     let mut p = Problem::new(linear(lambda), 1);
-    let mut d = Dop853::new(1);
+    let mut d = Dp853::new(1);
     d.start(&mut p, 0.0, &[1.0]).unwrap();
     d.attempt(&mut p, 0.01, &plain_norm(1)).unwrap();
     let est = d.stage_spectral_estimate().unwrap();
     assert!(
         (est - lambda.abs()).abs() < 1e-9 * lambda.abs(),
-        "DOP853: {est}"
+        "Dormand–Prince 8(5,3): {est}"
     );
     let mut t = ExplicitRk::new(&TSITOURAS_54, 1);
     Scheme::start(&mut t, &mut p, 0.0, &[1.0]).unwrap();
@@ -102,7 +102,7 @@ fn stage_estimate_lies_within_the_spectrum() {
         dy[1] = -y[1];
     };
     let mut p = Problem::new(rhs, 2);
-    let mut d = Dop853::new(2);
+    let mut d = Dp853::new(2);
     d.start(&mut p, 0.0, &[1.0, 1.0]).unwrap();
     d.attempt(&mut p, 0.02, &plain_norm(2)).unwrap();
     let est = d.stage_spectral_estimate().unwrap();

@@ -11,9 +11,9 @@
 //!
 //! which behaves like `O(h^8)` (Hairer, Norsett and Wanner I, II.10). On
 //! acceptance three more stages give the continuous extension of order 7
-//! (II.6). Coefficients: [`super::dop853_tableau`].
+//! (II.6). Coefficients: [`super::dp853_tableau`].
 
-use super::dop853_tableau::{self as tab, ALL_STAGES, DENSE, DENSE_DEGREE, STEP_STAGES};
+use super::dp853_tableau::{self as tab, ALL_STAGES, DENSE, DENSE_DEGREE, STEP_STAGES};
 use crate::endpoints::Endpoints;
 use crate::method::Method;
 use crate::norm::ErrorNorm;
@@ -56,11 +56,11 @@ fn stage_input(out: &mut [f64], y: &[f64], h: f64, row: &[f64], k: &[Vec<f64>], 
 /// Dormand–Prince 8(5,3) with its seventh-order dense output.
 ///
 /// ```
-/// use ballast_core::explicit::Dop853;
+/// use ballast_core::explicit::Dp853;
 /// use ballast_core::{Atol, ErrorNorm, Problem, Scheme, SchemeState};
 /// // y' = -y, one step of size 0.2 from y(0) = 1.
 /// let mut p = Problem::new(|_t: f64, y: &[f64], dy: &mut [f64]| dy[0] = -y[0], 1);
-/// let mut s = Dop853::new(1);
+/// let mut s = Dp853::new(1);
 /// let norm = ErrorNorm::new(1e-10, Atol::Scalar(1e-12), 1);
 /// s.start(&mut p, 0.0, &[1.0]).unwrap();
 /// let a = s.attempt(&mut p, 0.2, &norm).unwrap();
@@ -72,7 +72,7 @@ fn stage_input(out: &mut [f64], y: &[f64], h: f64, row: &[f64], k: &[Vec<f64>], 
 /// assert!((mid[0] - (-0.1f64).exp()).abs() < 1e-11);
 /// ```
 #[derive(Debug)]
-pub struct Dop853 {
+pub struct Dp853 {
     n: usize,
     /// The end points; the slope `f(t, y)` is `k[first]`.
     ends: Endpoints,
@@ -91,7 +91,7 @@ pub struct Dop853 {
     spectral: Option<f64>,
 }
 
-impl Dop853 {
+impl Dp853 {
     /// A scheme for a system of dimension `n`, with the seventh-order dense
     /// output (3 extra right-hand-side evaluations per accepted step). All
     /// work arrays are allocated here.
@@ -130,7 +130,7 @@ impl Dop853 {
     }
 }
 
-impl SchemeState for Dop853 {
+impl SchemeState for Dp853 {
     fn method(&self) -> Method {
         Method::DormandPrince853
     }
@@ -226,7 +226,7 @@ impl SchemeState for Dop853 {
     }
 }
 
-impl<S: System> Scheme<S> for Dop853 {
+impl<S: System> Scheme<S> for Dp853 {
     fn start(&mut self, p: &mut Problem<S>, t: f64, y: &[f64]) -> Result<(), StepFailure> {
         self.first = 0;
         self.dense_first = 0;

@@ -34,7 +34,7 @@ const FAST_RATE: f64 = 0.1;
 
 /// The Radau IIA 5 scheme.
 #[derive(Debug)]
-pub struct Radau5 {
+pub struct RadauIia5 {
     k: RadauConstants,
     n: usize,
     /// The end points of the last step; the slope `f(t, y)` is `f0`.
@@ -75,7 +75,7 @@ fn constants() -> &'static Option<RadauConstants> {
     })
 }
 
-impl Radau5 {
+impl RadauIia5 {
     /// A scheme for a system of dimension `n` whose Jacobian has `structure`.
     pub fn new(n: usize, structure: &Structure, opts: &ImplicitOptions) -> Result<Self, String> {
         let k = constants()
@@ -222,7 +222,7 @@ impl Radau5 {
     }
 }
 
-impl SchemeState for Radau5 {
+impl SchemeState for RadauIia5 {
     fn method(&self) -> Method {
         Method::RadauIIA5
     }
@@ -268,7 +268,7 @@ impl SchemeState for Radau5 {
     }
 }
 
-impl<S: System> Scheme<S> for Radau5 {
+impl<S: System> Scheme<S> for RadauIia5 {
     fn start(&mut self, p: &mut Problem<S>, t: f64, y: &[f64]) -> Result<(), StepFailure> {
         for c in self.cont.iter_mut() {
             c.fill(0.0);
