@@ -76,6 +76,8 @@ pub struct Controller<S: System> {
     /// Magnitude of the next step the accuracy rule proposes.
     h: f64,
     stats: ControlStats,
+    /// Whether the active scheme is implicit (kept in step with switches).
+    implicit_active: bool,
 }
 
 impl<S: System> std::fmt::Debug for Controller<S> {
@@ -134,6 +136,7 @@ impl<S: System> Controller<S> {
             direction,
             h: 0.0,
             stats: ControlStats::default(),
+            implicit_active: false,
         };
         ctl.h = match (ctl.cfg.fixed_step, ctl.cfg.first_step) {
             (Some(h), _) => h,
@@ -151,6 +154,7 @@ impl<S: System> Controller<S> {
         ) {
             ctl.h = h;
         }
+        ctl.implicit_active = ctl.active.is_implicit();
         Ok(ctl)
     }
 
@@ -190,6 +194,13 @@ impl<S: System> Controller<S> {
     /// The method now in use.
     pub fn active_method(&self) -> Method {
         self.active.method()
+    }
+
+    /// Whether the scheme now in use is implicit (no call through the
+    /// scheme: cheap enough to ask after every step).
+    pub fn implicit_active(&self) -> bool {
+        debug_assert_eq!(self.implicit_active, self.active.is_implicit());
+        self.implicit_active
     }
 
     /// Current time.
@@ -338,6 +349,7 @@ impl<S: System> Controller<S> {
                     ) {
                         self.pi.reset();
                         self.h = next;
+                        self.implicit_active = self.active.is_implicit();
                     }
                     return Ok(StepReport {
                         t_prev: t,

@@ -131,19 +131,12 @@ impl<'o, S: System> Run<'o, S> {
             stability_cap: opts.stability_cap,
             switching: opts.switching.clone(),
         };
-        let mut ctl = Controller::new(
-            Guarded::new(system, !opts.method.is_explicit()),
-            t0,
-            &y0,
-            t1,
-            norm,
-            cfg,
-        )
-        .map_err(|e| match e {
-            SetupError::NonFiniteInitialRhs { t } => Error::NonFiniteInitialRhs { t },
-            SetupError::FixedStepRequired(m) => Error::FixedStepRequired(m),
-            other => Error::InvalidSetup(other.to_string()),
-        })?;
+        let mut ctl =
+            Controller::new(Guarded::new(system), t0, &y0, t1, norm, cfg).map_err(|e| match e {
+                SetupError::NonFiniteInitialRhs { t } => Error::NonFiniteInitialRhs { t },
+                SetupError::FixedStepRequired(m) => Error::FixedStepRequired(m),
+                other => Error::InvalidSetup(other.to_string()),
+            })?;
 
         let mut out = OutputKeeper::new(&opts, n, t0, t1, &y0);
         let mut sol = Solution {
@@ -183,7 +176,8 @@ impl<'o, S: System> Run<'o, S> {
                 Some(b) => (breakpoints.before(b), b),
                 None => (t1, t1),
             };
-            ctl.system_mut().clear();
+            let implicit = ctl.implicit_active();
+            ctl.system_mut().prepare(implicit);
             let report = match ctl.step(limit) {
                 Ok(r) => r,
                 Err(failure) => {
