@@ -473,13 +473,7 @@ fn final_state_output_is_the_last_kept_step() {
             };
             let last = run(Output::Final).unwrap_or_else(|e| panic!("{method} {case}: {e}"));
             let all = run(Output::Steps).unwrap_or_else(|e| panic!("{method} {case}: {e}"));
-            assert_eq!(last.t_final(), all.t_final(), "{method} {case}");
-            assert_eq!(last.y_final(), all.y_final(), "{method} {case}");
-            assert_eq!(
-                last.y_final(),
-                all.iter().last().unwrap().1,
-                "{method} {case}"
-            );
+            same_final_state(&last, &all, &format!("{method} {case}"));
         }
         let failed = |output| {
             integrate(sick, (0.0, 2.0), &[1.0, 0.0], &base.clone().output(output))
@@ -488,12 +482,13 @@ fn final_state_output_is_the_last_kept_step() {
                 .expect("a partial solution")
         };
         let (last, all) = (failed(Output::Final), failed(Output::Steps));
-        assert_eq!(last.t_final(), all.t_final(), "{method} failing");
-        assert_eq!(last.y_final(), all.y_final(), "{method} failing");
-        assert_eq!(
-            last.y_final(),
-            all.iter().last().unwrap().1,
-            "{method} failing"
-        );
+        same_final_state(&last, &all, &format!("{method} failing"));
     }
+}
+
+/// `last` (final state only) ends where `all` (every step kept) ends, bit for bit.
+fn same_final_state(last: &Solution, all: &Solution, case: &str) {
+    assert_eq!(last.t_final(), all.t_final(), "{case}");
+    assert_eq!(last.y_final(), all.y_final(), "{case}");
+    assert_eq!(last.y_final(), all.iter().last().unwrap().1, "{case}");
 }
