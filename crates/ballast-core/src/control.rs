@@ -45,6 +45,7 @@ impl PiController {
     /// The factor by which to multiply the step after a step with weighted
     /// error `error`, for an estimate of order `q`. Call once per attempt;
     /// `accepted` says whether that attempt was accepted.
+    #[inline]
     pub fn factor(&mut self, error: f64, q: usize, accepted: bool) -> f64 {
         let k = (q + 1) as f64;
         let err = error.max(1e-10);

@@ -67,6 +67,7 @@ impl Endpoints {
     }
 
     /// Evaluates `f = f(t, y)` unless it is known already.
+    #[inline]
     pub(crate) fn ensure_f<S: System>(&mut self, p: &mut Problem<S>, f: &mut [f64]) {
         if !self.have_f {
             p.rhs(self.t, &self.y, f);

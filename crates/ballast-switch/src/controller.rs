@@ -54,14 +54,19 @@ pub struct StepReport {
 }
 
 /// The step just accepted, as the switching logic needs it: passed by
-/// value in two registers (the full [`StepReport`] is built after the
-/// switching logic has run and written once, straight into the result).
+/// value (the full [`StepReport`] is built after the switching logic has
+/// run and written once, straight into the result), with the scheme's
+/// identity from the controller's cache instead of calls through it.
 #[derive(Clone, Copy, Debug)]
 pub(crate) struct TakenStep {
     /// The step taken (signed).
     pub(crate) h: f64,
     /// Whether the stability cap set the step size.
     pub(crate) capped: bool,
+    /// Whether the scheme that took it is implicit.
+    pub(crate) implicit: bool,
+    /// The method that took it.
+    pub(crate) method: Method,
 }
 
 /// Drives one scheme, or a switching pair, over a time span.
@@ -76,8 +81,13 @@ pub struct Controller<S: System> {
     /// Magnitude of the next step the accuracy rule proposes.
     h: f64,
     stats: ControlStats,
-    /// Whether the active scheme is implicit (kept in step with switches).
+    /// Whether the active scheme is implicit, and its method (kept in
+    /// step with switches).
     implicit_active: bool,
+    method_active: Method,
+    /// The active scheme's time, kept here so a step starts without a
+    /// call through the scheme (every scheme advances by exactly `h`).
+    t: f64,
 }
 
 impl<S: System> std::fmt::Debug for Controller<S> {
@@ -126,6 +136,7 @@ impl<S: System> Controller<S> {
             .map_err(|_| SetupError::NonFiniteInitialRhs { t: t0 })?;
         let direction = if t_end >= t0 { 1.0 } else { -1.0 };
         let span = (t_end - t0).abs();
+        let (implicit_active, method_active) = (active.is_implicit(), active.method());
         let mut ctl = Self {
             problem,
             norm,
@@ -136,7 +147,9 @@ impl<S: System> Controller<S> {
             direction,
             h: 0.0,
             stats: ControlStats::default(),
-            implicit_active: false,
+            implicit_active,
+            method_active,
+            t: t0,
         };
         ctl.h = match (ctl.cfg.fixed_step, ctl.cfg.first_step) {
             (Some(h), _) => h,
@@ -152,9 +165,11 @@ impl<S: System> Controller<S> {
             &ctl.cfg,
             &mut ctl.stats,
         ) {
-            ctl.h = h;
+            ctl.h = h.min(ctl.cfg.max_step);
         }
         ctl.implicit_active = ctl.active.is_implicit();
+        ctl.method_active = ctl.active.method();
+        ctl.t = ctl.active.t();
         Ok(ctl)
     }
 
@@ -193,7 +208,8 @@ impl<S: System> Controller<S> {
 
     /// The method now in use.
     pub fn active_method(&self) -> Method {
-        self.active.method()
+        debug_assert_eq!(self.method_active, self.active.method());
+        self.method_active
     }
 
     /// Whether the scheme now in use is implicit (no call through the
@@ -257,9 +273,9 @@ impl<S: System> Controller<S> {
     /// breakpoint or a state change at an event). The step size is kept.
     pub fn restart(&mut self, t: f64, y: &[f64]) -> Result<(), RunFailure> {
         self.pi.reset();
-        self.active
-            .start(&mut self.problem, t, y)
-            .map_err(|_| RunFailure::NonFiniteRhs { t, h: self.h })
+        let started = self.active.start(&mut self.problem, t, y);
+        self.t = self.active.t();
+        started.map_err(|_| RunFailure::NonFiniteRhs { t, h: self.h })
     }
 
     /// Takes one accepted step towards `t_limit`, never past it.
@@ -268,7 +284,8 @@ impl<S: System> Controller<S> {
         // The last attempt failed on a non-finite value.
         let mut last_non_finite = false;
         loop {
-            let t = self.active.t();
+            let t = self.t;
+            debug_assert_eq!(t, self.active.t());
             let remaining = (t_limit - t) * self.direction;
             if remaining <= 0.0 {
                 return Ok(StepReport {
@@ -287,7 +304,9 @@ impl<S: System> Controller<S> {
                     max: self.cfg.max_steps,
                 });
             }
-            let mut h_mag = self.cfg.fixed_step.unwrap_or(self.h.min(self.cfg.max_step));
+            // `self.h` never exceeds max_step (every assignment keeps it so).
+            debug_assert!(self.h <= self.cfg.max_step);
+            let mut h_mag = self.cfg.fixed_step.unwrap_or(self.h);
             let mut capped = false;
             if let Some(cap) = self.switcher.step_cap() {
                 if cap < h_mag {
@@ -328,28 +347,42 @@ impl<S: System> Controller<S> {
                             }
                             None => self.pi.factor(a.error, q, true),
                         };
-                        let proposal = (h_mag * f).min(self.cfg.max_step);
-                        // A step shortened to land on the limit says nothing
-                        // about the step accuracy allows: keep the larger one.
-                        self.h = if reached_limit && !capped {
-                            proposal.max(self.h)
+                        // The next step size is on every step's critical path
+                        // (the stages wait for it): plain comparisons, where
+                        // `f64::min` / `max` add NaN handling (all values here
+                        // are finite).
+                        let proposal = h_mag * f;
+                        let proposal = if proposal > self.cfg.max_step {
+                            self.cfg.max_step
                         } else {
                             proposal
                         };
+                        // A step shortened to land on the limit says nothing
+                        // about the step accuracy allows: keep the larger one.
+                        if !(reached_limit && !capped && self.h > proposal) {
+                            self.h = proposal;
+                        }
                     }
                     // Every scheme advances its time by exactly `h`.
-                    debug_assert_eq!(self.active.t(), t + h);
+                    self.t = t + h;
+                    debug_assert_eq!(self.active.t(), self.t);
                     if let Some(next) = self.switcher.after_accept(
                         &mut self.problem,
                         &mut self.active,
-                        TakenStep { h, capped },
+                        TakenStep {
+                            h,
+                            capped,
+                            implicit: self.implicit_active,
+                            method: self.method_active,
+                        },
                         self.h,
                         &self.cfg,
                         &mut self.stats,
                     ) {
                         self.pi.reset();
-                        self.h = next;
+                        self.h = next.min(self.cfg.max_step);
                         self.implicit_active = self.active.is_implicit();
+                        self.method_active = self.active.method();
                     }
                     return Ok(StepReport {
                         t_prev: t,

@@ -315,8 +315,26 @@ impl<S: System> Switcher<S> {
     }
 
     /// Bookkeeping after an accepted step: estimates, costs, switching.
-    /// Returns the step size to use next when a switch happened.
+    /// Returns the step size to use next when a switch happened. Without
+    /// a monitor (stability cap off) there is nothing to do, decided
+    /// inline so such runs pay no call per step.
+    #[inline]
     pub(crate) fn after_accept(
+        &mut self,
+        p: &mut Problem<S>,
+        active: &mut Box<dyn Scheme<S>>,
+        report: TakenStep,
+        h_next: f64,
+        cfg: &ControlConfig,
+        stats: &mut ControlStats,
+    ) -> Option<f64> {
+        if self.monitor.is_none() {
+            return None;
+        }
+        self.after_accept_monitored(p, active, report, h_next, cfg, stats)
+    }
+
+    fn after_accept_monitored(
         &mut self,
         p: &mut Problem<S>,
         active: &mut Box<dyn Scheme<S>>,
@@ -328,7 +346,7 @@ impl<S: System> Switcher<S> {
         let m = self.monitor.as_mut()?;
         // Cost of the step just taken.
         let rhs_now = p.counters.rhs_evals;
-        let meter = if active.is_implicit() {
+        let meter = if report.implicit {
             &mut self.implicit_cost
         } else {
             &mut self.explicit_cost
@@ -347,7 +365,7 @@ impl<S: System> Switcher<S> {
         if m.due(active.as_ref(), &cfg.switching) {
             m.estimate(p, active.as_ref(), stats);
             self.refresh_cap(active.as_ref(), cfg);
-            let fraction = match (self.cap, active.is_implicit()) {
+            let fraction = match (self.cap, report.implicit) {
                 (Some(c), false) => report.h.abs() * cfg.switching.cap_safety / c,
                 (None, false) => 0.0,
                 // The implicit scheme needs the estimate to decide the way back.
@@ -356,18 +374,24 @@ impl<S: System> Switcher<S> {
             if let Some(m) = self.monitor.as_mut() {
                 m.note_margin(fraction);
             }
-        } else if matches!(active.method(), Method::Adams) {
+        } else if matches!(report.method, Method::Adams) {
             // The region follows the current order.
             self.refresh_cap(active.as_ref(), cfg);
         }
         let spectrum = self.monitor.as_ref().and_then(|m| m.latest());
-        let look = !active.is_implicit() || self.since_switch % RETURN_CHECK_EVERY == 0;
+        let look = !report.implicit || self.since_switch % RETURN_CHECK_EVERY == 0;
         let next = match (self.standby.is_some() && look, spectrum) {
             (true, Some(s)) => self.consider_switch(p, active, report, h_next, s, cfg, stats),
             _ => None,
         };
         self.last_rhs = p.counters.rhs_evals;
-        let time_next = if active.is_implicit() {
+        // A switch just now changed the scheme the step report speaks of.
+        let implicit_now = if next.is_some() {
+            active.is_implicit()
+        } else {
+            report.implicit
+        };
+        let time_next = if implicit_now {
             self.implicit_cost.steps % TIME_EVERY == 0
         } else {
             self.capped_run > 0 && self.capped_run % TIME_EVERY == 0
@@ -421,7 +445,7 @@ impl<S: System> Switcher<S> {
             let sb = self.standby.as_ref()?;
             (sb.method(), sb.order())
         };
-        if !active.is_implicit() {
+        if !report.implicit {
             let held = report.capped
                 || self
                     .cap
