@@ -328,9 +328,7 @@ impl<S: System> Switcher<S> {
         cfg: &ControlConfig,
         stats: &mut ControlStats,
     ) -> Option<f64> {
-        if self.monitor.is_none() {
-            return None;
-        }
+        self.monitor.as_ref()?;
         self.after_accept_monitored(p, active, report, h_next, cfg, stats)
     }
 
