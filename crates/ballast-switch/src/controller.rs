@@ -279,6 +279,7 @@ impl<S: System> Controller<S> {
     }
 
     /// Takes one accepted step towards `t_limit`, never past it.
+    #[inline]
     pub fn step(&mut self, t_limit: f64) -> Result<StepReport, RunFailure> {
         let mut failures = 0usize;
         // The last attempt failed on a non-finite value.
