@@ -53,6 +53,8 @@ const STAGE_CHECK_EVERY: usize = 4;
 /// The same while the steps stay below `FAR_FRACTION` of the reach, where a
 /// stiffness growth must exceed five-fold to matter.
 const STAGE_CHECK_EVERY_FAR: usize = 16;
+const _: () =
+    assert!(STAGE_CHECK_EVERY.is_power_of_two() && STAGE_CHECK_EVERY_FAR.is_power_of_two());
 
 /// The latest spectral estimate.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -116,7 +118,9 @@ impl Monitor {
         self.steps_since
     }
 
-    /// Whether a full estimate is due after an accepted step of `scheme`.
+    /// Whether a full estimate is due after an accepted step of `scheme`
+    /// (asked after every step: the common answer, no, is decided inline).
+    #[inline]
     pub(crate) fn due(&self, scheme: &dyn SchemeState, th: &SwitchThresholds) -> bool {
         if self.latest.is_none() || self.steps_since >= th.estimate_interval * self.stretch {
             return true;
@@ -129,9 +133,15 @@ impl Monitor {
         } else {
             STAGE_CHECK_EVERY
         };
-        if self.steps_since % every != 0 {
+        // Both intervals are powers of two: a mask, not a division.
+        if self.steps_since & (every - 1) != 0 {
             return false;
         }
+        self.stage_estimate_moved(scheme, th)
+    }
+
+    /// Whether the free stage estimate moved enough to call for a full one.
+    fn stage_estimate_moved(&self, scheme: &dyn SchemeState, th: &SwitchThresholds) -> bool {
         // A change of the stage estimate by the trigger fraction calls for a
         // full estimate when the old or the new value matters for the step
         // (reaches a noticeable fraction of the region along the real axis).

@@ -298,33 +298,57 @@ impl SchemeState for ExplicitRk {
 
     fn stage_spectral_estimate(&self) -> Option<f64> {
         let (i, j, weights) = self.stiffness.as_ref()?;
-        // Y_i - Y_j = h sum_l (a_il - a_jl) k_l, computed without buffers:
-        // the weights scaled and their stage slices gathered once.
-        let n = self.n;
-        let mut ws = [0.0; MAX_STAGES];
-        let mut ks: [&[f64]; MAX_STAGES] = [&[]; MAX_STAGES];
-        for (t, &(l, w)) in weights.iter().enumerate() {
-            ws[t] = self.h * w;
-            ks[t] = &self.stage(l)[..n];
-        }
-        let terms = weights.len();
-        let (ki, kj) = (&self.stage(*i)[..n], &self.stage(*j)[..n]);
-        let (mut num, mut den) = (0.0, 0.0);
-        for m in 0..n {
-            let dk = ki[m] - kj[m];
-            let mut dy = 0.0;
-            for t in 0..terms {
-                dy += ws[t] * ks[t][m];
-            }
-            num += dk * dk;
-            den += dy * dy;
-        }
+        let (ki, kj) = (self.stage(*i), self.stage(*j));
+        // Y_i - Y_j = h sum_l (a_il - a_jl) k_l, computed without buffers.
+        let (num, den) = match weights.len() {
+            1 => stage_difference::<1>(self, weights, ki, kj),
+            2 => stage_difference::<2>(self, weights, ki, kj),
+            3 => stage_difference::<3>(self, weights, ki, kj),
+            4 => stage_difference::<4>(self, weights, ki, kj),
+            5 => stage_difference::<5>(self, weights, ki, kj),
+            6 => stage_difference::<6>(self, weights, ki, kj),
+            7 => stage_difference::<7>(self, weights, ki, kj),
+            8 => stage_difference::<8>(self, weights, ki, kj),
+            _ => stage_difference::<MAX_STAGES>(self, weights, ki, kj),
+        };
         if den > 0.0 && num.is_finite() {
             Some((num / den).sqrt())
         } else {
             None
         }
     }
+}
+
+/// `(|k_i - k_j|^2, |Y_i - Y_j|^2)` for the free stage estimate, with at
+/// most `T` weights (fewer are padded with zero weights on stage 0): the
+/// weights scaled and their stage slices gathered once, as in
+/// [`combine_fixed`].
+#[inline(always)]
+fn stage_difference<const T: usize>(
+    rk: &ExplicitRk,
+    weights: &[(usize, f64)],
+    ki: &[f64],
+    kj: &[f64],
+) -> (f64, f64) {
+    let n = rk.n;
+    let mut ws = [0.0; T];
+    let mut ks: [&[f64]; T] = [&ki[..n]; T];
+    for (t, &(l, w)) in weights.iter().enumerate().take(T) {
+        ws[t] = rk.h * w;
+        ks[t] = &rk.stage(l)[..n];
+    }
+    let (ki, kj) = (&ki[..n], &kj[..n]);
+    let (mut num, mut den) = (0.0, 0.0);
+    for m in 0..n {
+        let dk = ki[m] - kj[m];
+        let mut dy = 0.0;
+        for t in 0..T {
+            dy += ws[t] * ks[t][m];
+        }
+        num += dk * dk;
+        den += dy * dy;
+    }
+    (num, den)
 }
 
 impl<S: System> Scheme<S> for ExplicitRk {
