@@ -131,7 +131,9 @@ type Factory<'m, S> = Box<dyn Fn() -> S + 'm>;
 /// A comparison of methods on one model. Build it, then [`run`](Study::run).
 ///
 /// Defaults: tolerances must be given; `atol = 1e-3 * rtol`; three timed
-/// repetitions per run (the median is reported); the reference is computed
+/// repetitions per run (the median is reported; a run under a millisecond
+/// is repeated back to back within each repetition and its mean time
+/// taken); the reference is computed
 /// automatically (see [`Study::reference_run`]); the error is measured as
 /// [`relative_error`] with the floor set to the smallest `atol` of the study.
 pub struct Study<'m, S> {

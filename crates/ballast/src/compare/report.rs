@@ -18,8 +18,10 @@ pub struct Row {
     /// [`relative_error`](super::relative_error)); `None` for a failed run
     /// or when no reference was available.
     pub error: Option<f64>,
-    /// Wall time in seconds: the median over the timed repetitions, or the
-    /// time until the failure.
+    /// Wall time in seconds: the median over the timed repetitions (a
+    /// repetition of a run under a millisecond is the mean of a batch of
+    /// back-to-back runs lasting at least that long), or the time until the
+    /// failure.
     pub seconds: f64,
     /// Work and decision counters (up to the failure for a failed run).
     pub stats: Stats,

@@ -85,10 +85,12 @@ pub(crate) fn render(report: &Report) -> String {
         report.reference().source
     ));
     out.push_str(&format!(
-        "error = max_i |y_i - ref_i| / max(|ref_i|, {:.0e}); time = median of {} run(s); \
+        "error = max_i |y_i - ref_i| / max(|ref_i|, {:.0e}); time = median of {} run(s) \
+         (runs under {ms} ms timed in back-to-back batches of at least {ms} ms); \
          capped = steps set by the stability cap\n\n",
         report.error_floor(),
-        report.repeats()
+        report.repeats(),
+        ms = super::runner::MIN_SAMPLE_SECONDS * 1e3
     ));
     let body: Vec<Vec<String>> = report.rows().iter().map(cells).collect();
     let mut widths: Vec<usize> = COLUMNS.iter().map(|(h, _)| h.chars().count()).collect();

@@ -367,3 +367,46 @@ fn the_picture_has_axes_a_legend_and_a_line_per_method() {
         );
     }
 }
+
+/// A run well under a millisecond is timed in batches: each repetition
+/// runs the model back to back until a millisecond has passed, and the row
+/// keeps the mean time of one run. (The first repetition also pays the
+/// process's one-time work, such as the stability region: the median of
+/// three leaves it out.)
+#[test]
+fn short_runs_are_timed_in_batches() {
+    use std::cell::Cell;
+    let made = Cell::new(0usize);
+    let make = || {
+        made.set(made.get() + 1);
+        oscillator as Rhs
+    };
+    let options = Options::default()
+        .method(Method::DormandPrince54)
+        .rtol(1e-4)
+        .atol(1e-7);
+    let job = runner::Job {
+        label: "DP5(4)".into(),
+        rtol: 1e-4,
+        atol: 1e-7,
+        options,
+    };
+    let rows = runner::measure_all(
+        &make,
+        (0.0, T1),
+        &[1.0, 0.0],
+        &[job],
+        3,
+        Some(&exact(T1)),
+        1e-7,
+    );
+    let row = &rows[0];
+    assert!(row.failure.is_none(), "{:?}", row.failure);
+    assert_eq!(row.timed_runs, 3);
+    assert!(
+        row.seconds < runner::MIN_SAMPLE_SECONDS,
+        "mean of one run: {} s",
+        row.seconds
+    );
+    assert!(made.get() > 4, "{} runs: no batching", made.get());
+}
