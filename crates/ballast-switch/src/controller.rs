@@ -367,19 +367,24 @@ impl<S: System> Controller<S> {
                     // Every scheme advances its time by exactly `h`.
                     self.t = t + h;
                     debug_assert_eq!(self.active.t(), self.t);
-                    if let Some(next) = self.switcher.after_accept(
-                        &mut self.problem,
-                        &mut self.active,
-                        TakenStep {
-                            h,
-                            capped,
-                            implicit: self.implicit_active,
-                            method: self.method_active,
-                        },
-                        self.h,
-                        &self.cfg,
-                        &mut self.stats,
-                    ) {
+                    let switched = if self.switcher.is_watching() {
+                        self.switcher.after_accept(
+                            &mut self.problem,
+                            &mut self.active,
+                            TakenStep {
+                                h,
+                                capped,
+                                implicit: self.implicit_active,
+                                method: self.method_active,
+                            },
+                            self.h,
+                            &self.cfg,
+                            &mut self.stats,
+                        )
+                    } else {
+                        None
+                    };
+                    if let Some(next) = switched {
                         self.pi.reset();
                         self.h = next.min(self.cfg.max_step);
                         self.implicit_active = self.active.is_implicit();
@@ -387,7 +392,7 @@ impl<S: System> Controller<S> {
                     }
                     return Ok(StepReport {
                         t_prev: t,
-                        t: t + h,
+                        t: self.t,
                         h,
                         capped,
                         reached_limit,

@@ -314,25 +314,17 @@ impl<S: System> Switcher<S> {
         }
     }
 
-    /// Bookkeeping after an accepted step: estimates, costs, switching.
-    /// Returns the step size to use next when a switch happened. Without
-    /// a monitor (stability cap off) there is nothing to do, decided
-    /// inline so such runs pay no call per step.
+    /// Whether anything watches the run (a pair, or the stability cap):
+    /// without a monitor [`Self::after_accept`] has nothing to do, and the
+    /// controller, asking this inline, skips the call.
     #[inline]
-    pub(crate) fn after_accept(
-        &mut self,
-        p: &mut Problem<S>,
-        active: &mut Box<dyn Scheme<S>>,
-        report: TakenStep,
-        h_next: f64,
-        cfg: &ControlConfig,
-        stats: &mut ControlStats,
-    ) -> Option<f64> {
-        self.monitor.as_ref()?;
-        self.after_accept_monitored(p, active, report, h_next, cfg, stats)
+    pub(crate) fn is_watching(&self) -> bool {
+        self.monitor.is_some()
     }
 
-    fn after_accept_monitored(
+    /// Bookkeeping after an accepted step: estimates, costs, switching.
+    /// Returns the step size to use next when a switch happened.
+    pub(crate) fn after_accept(
         &mut self,
         p: &mut Problem<S>,
         active: &mut Box<dyn Scheme<S>>,
