@@ -38,6 +38,11 @@ pub struct Attempt {
     /// (multistep order selection, slow Newton convergence). `None` lets the
     /// controller's accuracy rule decide.
     pub factor: Option<f64>,
+    /// An upper bound on the next step's factor, whoever proposes it: an
+    /// implicit scheme whose Newton iteration contracted slowly limits the
+    /// growth that would make the next iteration fail. `f64::INFINITY`
+    /// when the scheme sets none.
+    pub max_factor: f64,
 }
 
 impl Attempt {
@@ -46,7 +51,13 @@ impl Attempt {
         Self {
             error,
             factor: None,
+            max_factor: f64::INFINITY,
         }
+    }
+
+    /// The same attempt with the next step's factor limited to `max_factor`.
+    pub fn limited_to(self, max_factor: f64) -> Self {
+        Self { max_factor, ..self }
     }
 }
 

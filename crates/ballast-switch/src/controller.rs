@@ -348,6 +348,7 @@ impl<S: System> Controller<S> {
                             }
                             None => self.pi.factor(a.error, q, true),
                         };
+                        let f = if f > a.max_factor { a.max_factor } else { f };
                         // The next step size is on every step's critical path
                         // (the stages wait for it): plain comparisons, where
                         // `f64::min` / `max` add NaN handling (all values here
@@ -407,7 +408,7 @@ impl<S: System> Controller<S> {
                         Some(f) => f.min(0.9),
                         None => self.pi.factor(a.error, q, false),
                     };
-                    self.h = h_mag * f;
+                    self.h = h_mag * f.min(a.max_factor);
                     self.switcher.after_reject();
                 }
                 Err(failure) => {

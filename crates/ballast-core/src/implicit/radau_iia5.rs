@@ -10,8 +10,12 @@
 //! order-3 formula filtered by `(gamma/h I - J)^{-1}` (eq. (8.19)–(8.20)),
 //! refiltered through `f(t_n, y_n + err)` on the first step and after a
 //! rejection; dense output is the collocation polynomial, which also
-//! predicts the next step's stages. The factorisations are kept while
-//! `h / h_factored` is in `[1, 1.2)` and Newton contracted fast.
+//! predicts the next step's stages (after a failed iteration too: the
+//! polynomial of the last accepted step still holds, and a zero start at
+//! half the step costs more iterations than it saves). The factorisations
+//! are kept while `h / h_factored` is in `[1, 1.2)` and Newton contracted
+//! fast. A step whose iteration contracted at rate `theta` limits the next
+//! step to `TARGET_RATE / theta` times its size (see `TARGET_RATE`).
 
 use std::sync::OnceLock;
 
@@ -31,6 +35,20 @@ use num_complex::Complex64;
 /// Newton rate below which the factorisation may be kept (Hairer and
 /// Wanner II, IV.8 keep it when the Jacobian is kept).
 const FAST_RATE: f64 = 0.1;
+
+/// Newton contraction rate the next step aims at. The rate grows about in
+/// proportion to the step (the Jacobian, frozen at the step's start, drifts
+/// from the true one across the step), and an iteration that contracts too
+/// slowly fails the convergence forecast and costs a halved step. Measured
+/// on the stiffness ramp of `ballast-models` (rtol 1e-6 / 1e-8): without a
+/// limit 19 / 41 failed attempts; target 0.2: 0 / 25; 0.1: 0 / 0 with 28 % /
+/// 19 % fewer right-hand-side calls than without. On the other stiff models
+/// the limit rarely binds (calls within 5 %).
+const TARGET_RATE: f64 = 0.1;
+
+/// The growth limit never shrinks an accepted step below this factor (the
+/// accuracy rule and the failure response handle larger cuts).
+const MIN_RATE_FACTOR: f64 = 0.5;
 
 /// The Radau IIA 5 scheme.
 #[derive(Debug)]
@@ -132,7 +150,7 @@ impl RadauIia5 {
     fn predict(&mut self, h: f64) {
         let t = &self.k.tinv;
         let ends = &self.ends;
-        if ends.h_last != 0.0 && !self.last_failed && !self.first {
+        if ends.h_last != 0.0 && !self.first {
             for l in 0..3 {
                 let th = 1.0 + self.k.c[l] * h / ends.h_last;
                 for m in 0..self.n {
@@ -327,7 +345,15 @@ impl<S: System> Scheme<S> for RadauIia5 {
         }
         self.last_failed = false;
         if error.is_finite() {
-            Ok(Attempt::with_error(error))
+            let attempt = Attempt::with_error(error);
+            let theta = self.newton.theta();
+            // Below half the target the limit would allow more than the
+            // accuracy rule's usual growth anyway.
+            Ok(if theta > 0.5 * TARGET_RATE {
+                attempt.limited_to((TARGET_RATE / theta).max(MIN_RATE_FACTOR))
+            } else {
+                attempt
+            })
         } else {
             self.iter.after_failure();
             Err(StepFailure::NonFinite)

@@ -188,6 +188,7 @@ impl Engine {
         Attempt {
             error: current,
             factor: Some(factor),
+            max_factor: f64::INFINITY,
         }
     }
 
