@@ -10,11 +10,14 @@
 //! `min_steps_between_switches` steps separate two switches.
 //!
 //! Costs per unit time are `seconds per step / h`, from measured
-//! quantities: the time of the explicit steps the cap holds (one in
-//! `TIME_EVERY` is timed; before any is, its right-hand-side calls per step
-//! at the time per call measured during the spectral estimates), and, once
-//! the implicit scheme has run, its measured time per step (which includes
-//! Jacobians and factorisations). Before the implicit scheme has run once,
+//! quantities: the time of the runs of explicit steps the cap holds
+//! (before one is timed, its right-hand-side calls per step at the time
+//! per call measured during the spectral estimates), and, once the
+//! implicit scheme has run, the time of its runs (which includes Jacobians
+//! and factorisations). A run is timed as a whole, one clock reading at
+//! its start and one per decision, so a step slowed by a one-time cost
+//! (the first use of the implicit scheme's memory, an interrupt) weighs
+//! as one step among all of the run, not as one sample among two. Before the implicit scheme has run once,
 //! its step is predicted as `PRIOR_RHS_PER_IMPLICIT_STEP` calls plus a
 //! dense LU at `PRIOR_SECONDS_PER_FLOP`; after the first switch
 //! measurements replace the prior.
@@ -89,12 +92,6 @@ const PROBE_BACKOFF: usize = 4;
 const MAX_RATIO_BACKOFF: f64 = 8.0;
 const PROBE_AGAIN_GROWTH: f64 = 2.0;
 
-/// One implicit step in this many is timed (reading the clock costs tens
-/// of nanoseconds, comparable to a whole step of a small implicit system),
-/// and one explicit step in this many among those the cap holds (only
-/// those enter a comparison, so a run the cap never holds reads no clock).
-const TIME_EVERY: usize = 8;
-
 /// Implicit steps between two looks at the way back to the explicit scheme
 /// (the estimate that decides it changes only every few steps anyway).
 const RETURN_CHECK_EVERY: usize = 4;
@@ -145,21 +142,54 @@ pub struct SwitchRecord {
 }
 
 /// Measured cost of one scheme: seconds and right-hand-side calls per step.
+///
+/// Time is measured over runs of steps (see the module text): a run opens
+/// with a clock reading and closes into the totals.
 #[derive(Clone, Copy, Debug, Default)]
 struct CostMeter {
+    /// Accepted steps and their right-hand-side calls.
     steps: usize,
     rhs: usize,
-    /// Steps whose time was measured (one in `TIME_EVERY`), and their time.
+    /// Steps of closed timed runs, and their time.
     timed: usize,
     seconds: f64,
+    /// The open run: its clock and `steps` when it opened.
+    run: Option<(Instant, usize)>,
 }
 
 impl CostMeter {
     fn rhs_per_step(&self) -> Option<f64> {
         (self.steps > 0).then(|| self.rhs as f64 / self.steps as f64)
     }
+
+    /// Opens a timed run unless one is open.
+    fn open_run(&mut self) {
+        if self.run.is_none() {
+            self.run = Some((Instant::now(), self.steps));
+        }
+    }
+
+    /// Closes the open run (if any) into the totals.
+    fn close_run(&mut self) {
+        if let Some((clock, from)) = self.run.take() {
+            let steps = self.steps - from;
+            if steps > 0 {
+                self.seconds += clock.elapsed().as_secs_f64();
+                self.timed += steps;
+            }
+        }
+    }
+
+    /// Mean seconds per step over the closed runs and the open one.
     fn seconds_per_step(&self) -> Option<f64> {
-        (self.timed > 0 && self.seconds > 0.0).then(|| self.seconds / self.timed as f64)
+        let (mut seconds, mut steps) = (self.seconds, self.timed);
+        if let Some((clock, from)) = self.run {
+            if self.steps > from {
+                seconds += clock.elapsed().as_secs_f64();
+                steps += self.steps - from;
+            }
+        }
+        (steps > 0 && seconds > 0.0).then(|| seconds / steps as f64)
     }
 }
 
@@ -185,9 +215,8 @@ pub(crate) struct Switcher<S: System> {
     probe_after: usize,
     /// Spectral radius when the implicit scheme was last left as dearer.
     rho_left_dearer: Option<f64>,
-    /// Counter snapshot and clock at the previous accepted step.
+    /// Counter snapshot at the previous accepted step.
     last_rhs: usize,
-    clock: Option<Instant>,
 }
 
 impl<S: System> Switcher<S> {
@@ -234,7 +263,6 @@ impl<S: System> Switcher<S> {
                 probe_after: PROBE_AFTER_CAPPED_STEPS,
                 rho_left_dearer: None,
                 last_rhs: 0,
-                clock: None,
             },
         ))
     }
@@ -343,10 +371,6 @@ impl<S: System> Switcher<S> {
         };
         meter.steps += 1;
         meter.rhs += rhs_now - self.last_rhs;
-        if let Some(c) = self.clock.take() {
-            meter.seconds += c.elapsed().as_secs_f64();
-            meter.timed += 1;
-        }
         m.note_accept();
         if report.capped {
             m.watch_closely();
@@ -375,20 +399,6 @@ impl<S: System> Switcher<S> {
             _ => None,
         };
         self.last_rhs = p.counters.rhs_evals;
-        // A switch just now changed the scheme the step report speaks of.
-        let implicit_now = if next.is_some() {
-            active.is_implicit()
-        } else {
-            report.implicit
-        };
-        let time_next = if implicit_now {
-            self.implicit_cost.steps % TIME_EVERY == 0
-        } else {
-            self.capped_run > 0 && self.capped_run % TIME_EVERY == 0
-        };
-        if time_next {
-            self.clock = Some(Instant::now());
-        }
         next
     }
 
@@ -442,10 +452,12 @@ impl<S: System> Switcher<S> {
                     .is_some_and(|c| report.h.abs() >= th.stiff_fraction * c / th.cap_safety);
             if !held {
                 self.capped_run = 0;
+                self.explicit_cost.close_run();
                 self.h_uncapped = h_next;
                 return None;
             }
             self.capped_run += 1;
+            self.explicit_cost.open_run();
             if self.capped_run < th.capped_steps_to_switch
                 || self.since_switch < th.min_steps_between_switches
             {
@@ -565,6 +577,12 @@ impl<S: System> Switcher<S> {
             rho,
         });
         stats.switches += 1;
+        if active.is_implicit() {
+            self.explicit_cost.close_run();
+            self.implicit_cost.open_run();
+        } else {
+            self.implicit_cost.close_run();
+        }
         if let Some(m) = self.monitor.as_mut() {
             m.watch_closely();
         }
@@ -573,5 +591,38 @@ impl<S: System> Switcher<S> {
         self.fitting_run = 0;
         self.cap = None;
         Some(())
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::CostMeter;
+    use std::time::Duration;
+
+    /// A timed run weighs every step it spans, a slow first one included:
+    /// the mean is the run's time over its steps, and closed runs add up.
+    #[test]
+    fn cost_meter_times_whole_runs() {
+        let mut m = CostMeter::default();
+        assert_eq!(m.seconds_per_step(), None);
+        m.steps = 3; // steps before the run are not timed
+        m.open_run();
+        assert_eq!(m.seconds_per_step(), None, "an empty run says nothing");
+        std::thread::sleep(Duration::from_millis(20));
+        m.steps += 4;
+        let open = m.seconds_per_step().unwrap();
+        assert!(open >= 0.020 / 4.0, "{open}");
+        m.close_run();
+        assert_eq!(m.timed, 4);
+        let closed = m.seconds_per_step().unwrap();
+        assert!(closed >= open, "{closed} < {open}");
+        // Steps outside any run change nothing; a second run adds in.
+        m.steps += 10;
+        assert_eq!(m.seconds_per_step(), Some(closed));
+        m.open_run();
+        m.steps += 4;
+        m.close_run();
+        assert_eq!(m.timed, 8);
+        assert!(m.seconds_per_step().unwrap() <= closed);
     }
 }
