@@ -18,12 +18,18 @@
 //!   crossings with the ray are refined in `phi` (Illinois), and the root
 //!   condition (Schur–Cohn) is checked between consecutive crossings.
 //!
+//! A one-step method's rays are computed when first asked for (a step-size
+//! cap interpolates between two of them): tabulating all 721 took about
+//! 7 ms, which the first `integrate()` call of a process paid in full.
+//! Multistep rays are tabulated together (the locus is shared).
+//!
 //! `|R| <= 1 + 1e-13` counts as stable: this absorbs round-off where the
 //! boundary only touches a ray (e.g. the imaginary axis near 0 for RK4) and
 //! moves crossings by far less than `1e-12` relative, except on rays within
 //! about `1e-5` rad of such a tangency.
 
 use std::f64::consts::{FRAC_PI_2, PI};
+use std::sync::OnceLock;
 
 use num_complex::Complex64;
 
@@ -100,7 +106,8 @@ pub struct Region {
     name: String,
     function: StabilityFunction,
     engine: Engine,
-    rays: Vec<f64>,
+    /// The reach along each tabulated ray, computed on first use.
+    rays: Vec<OnceLock<f64>>,
     summary: StabilitySummary,
 }
 
@@ -163,7 +170,7 @@ impl Region {
             name: name.into(),
             function,
             engine,
-            rays: Vec::new(),
+            rays: (0..RAYS).map(|_| OnceLock::new()).collect(),
             summary: StabilitySummary {
                 order,
                 explicit,
@@ -175,7 +182,7 @@ impl Region {
                 a_alpha: None,
             },
         };
-        region.rays = region.tabulate();
+        region.tabulate_locus();
         region.summary = region.summarise(order, explicit);
         region
     }
@@ -196,9 +203,15 @@ impl Region {
     }
 
     /// The tabulated reaches: entry `j` is along [`ray_angle`]`(j)`
-    /// (`f64::INFINITY` where the whole ray is inside).
-    pub fn tabulated(&self) -> &[f64] {
-        &self.rays
+    /// (`f64::INFINITY` where the whole ray is inside). Computes every ray
+    /// not yet computed.
+    pub fn tabulated(&self) -> Vec<f64> {
+        (0..RAYS).map(|j| self.ray(j)).collect()
+    }
+
+    /// The reach along tabulated ray `j`, computed on first use.
+    fn ray(&self, j: usize) -> f64 {
+        *self.rays[j].get_or_init(|| self.reach_along(ray_direction(j), false))
     }
 
     /// Whether `z` is in the region (fast test for plotting: `|R| <= 1` for
@@ -225,7 +238,7 @@ impl Region {
         let x = (t - FRAC_PI_2) / DTHETA;
         let j = (x.floor() as usize).min(RAYS - 2);
         let f = x - j as f64;
-        let (r0, r1) = (self.rays[j], self.rays[j + 1]);
+        let (r0, r1) = (self.ray(j), self.ray(j + 1));
         if f == 0.0 {
             return opt(r0);
         }
@@ -307,34 +320,33 @@ impl Region {
         }
     }
 
-    fn tabulate(&self) -> Vec<f64> {
-        match &self.engine {
-            Engine::Multistep {
-                poly,
-                branches,
-                a_stable: false,
-            } => {
-                // Bucket locus segments by the rays they cross (each
-                // segment spans less than pi in angle), then resolve per ray.
-                let mut per_ray: Vec<Vec<f64>> = vec![Vec::new(); RAYS];
-                for branch in branches {
-                    for w in branch.windows(2) {
-                        for j in rays_crossed(w[0].1, w[1].1) {
-                            if let Some(t) = crossing(poly, w[0], w[1], ray_direction(j)) {
-                                per_ray[j].push(t);
-                            }
+    /// Fills every ray of a multistep region that is not A-stable at once:
+    /// its boundary locus is shared by all rays. Other regions compute
+    /// their rays one by one when asked ([`Self::ray`]).
+    fn tabulate_locus(&self) {
+        if let Engine::Multistep {
+            poly,
+            branches,
+            a_stable: false,
+        } = &self.engine
+        {
+            // Bucket locus segments by the rays they cross (each
+            // segment spans less than pi in angle), then resolve per ray.
+            let mut per_ray: Vec<Vec<f64>> = vec![Vec::new(); RAYS];
+            for branch in branches {
+                for w in branch.windows(2) {
+                    for j in rays_crossed(w[0].1, w[1].1) {
+                        if let Some(t) = crossing(poly, w[0], w[1], ray_direction(j)) {
+                            per_ray[j].push(t);
                         }
                     }
                 }
-                per_ray
-                    .into_iter()
-                    .enumerate()
-                    .map(|(j, ts)| first_unstable(poly, ray_direction(j), ts))
-                    .collect()
             }
-            _ => (0..RAYS)
-                .map(|j| self.reach_along(ray_direction(j), false))
-                .collect(),
+            for (j, ts) in per_ray.into_iter().enumerate() {
+                let r = first_unstable(poly, ray_direction(j), ts);
+                // Freshly built: nothing has filled the ray yet.
+                let _ = self.rays[j].set(r);
+            }
         }
     }
 
@@ -379,7 +391,7 @@ impl Region {
         let side = |step: isize| {
             let mut j = mid as isize;
             while (0..RAYS as isize).contains(&(j + step))
-                && self.rays[(j + step) as usize].is_infinite()
+                && self.ray((j + step) as usize).is_infinite()
             {
                 j += step;
             }
