@@ -11,6 +11,8 @@
 //! evaluated on acceptance otherwise, where it serves as the next step's
 //! first stage and as the end slope of Hermite dense output.
 
+use std::sync::Mutex;
+
 use super::tableau::Tableau;
 use crate::endpoints::Endpoints;
 use crate::method::Method;
@@ -35,16 +37,17 @@ pub struct ExplicitRk {
     tmp: Vec<f64>,
     /// The non-zero weights of each row of `A` (with their stage indices),
     /// then of `b`, then of `e` if the tableau has an estimate.
-    terms: Vec<Vec<(usize, f64)>>,
+    terms: &'static [Vec<(usize, f64)>],
     /// The stiffness pair `(i, j)` and the non-zero `a_il - a_jl` (at most
     /// `MAX_STAGES` of them), for the free stage estimate.
-    stiffness: Option<StiffnessPair>,
+    stiffness: &'static Option<StiffnessPair>,
     h: f64,
 }
 
 impl ExplicitRk {
     /// A scheme for a system of dimension `n`; all work arrays are allocated here.
     pub fn new(tab: &'static Tableau, n: usize) -> Self {
+        let weights = weights_of(tab);
         let s = tab.stages();
         let extra = usize::from(!tab.fsal);
         Self {
@@ -55,15 +58,8 @@ impl ExplicitRk {
             swapped_first: None,
             y_new: vec![0.0; n],
             tmp: vec![0.0; n],
-            terms: tab
-                .a
-                .iter()
-                .copied()
-                .chain([tab.b])
-                .chain(tab.e)
-                .map(non_zero)
-                .collect(),
-            stiffness: stiffness_weights(tab),
+            terms: &weights.terms,
+            stiffness: &weights.stiffness,
             h: 0.0,
         }
     }
@@ -100,6 +96,40 @@ const MAX_STAGES: usize = 16;
 
 /// Two stages `(i, j)` at one node and the non-zero `(l, a_il - a_jl)`.
 type StiffnessPair = (usize, usize, Vec<(usize, f64)>);
+
+/// What a scheme reads from its tableau at every step, in the form the
+/// stage loop wants: the non-zero weights per row and the stiffness pair.
+#[derive(Debug)]
+struct Weights {
+    terms: Vec<Vec<(usize, f64)>>,
+    stiffness: Option<StiffnessPair>,
+}
+
+/// The weights of `tab`, built once per tableau and process and kept for
+/// its lifetime (tableaux are static, so the cache stays as small as the
+/// set of tableaux in use). A scheme built for a short run would otherwise
+/// spend a dozen allocations on them; the switching pair builds one for
+/// every run.
+fn weights_of(tab: &'static Tableau) -> &'static Weights {
+    static CACHE: Mutex<Vec<(&'static Tableau, &'static Weights)>> = Mutex::new(Vec::new());
+    let mut cache = CACHE.lock().unwrap_or_else(|e| e.into_inner());
+    if let Some(&(_, w)) = cache.iter().find(|(t, _)| std::ptr::eq(*t, tab)) {
+        return w;
+    }
+    let w: &'static Weights = Box::leak(Box::new(Weights {
+        terms: tab
+            .a
+            .iter()
+            .copied()
+            .chain([tab.b])
+            .chain(tab.e)
+            .map(non_zero)
+            .collect(),
+        stiffness: stiffness_weights(tab),
+    }));
+    cache.push((tab, w));
+    w
+}
 
 /// The stiffness pair of `tab` with the non-zero `a_il - a_jl`, when the
 /// pair is usable: two distinct later stages, at most `MAX_STAGES` terms.
