@@ -285,6 +285,44 @@ fn radau_newton_keeps_converging_on_the_ramp() {
     }
 }
 
+/// 150 copies of a Prothero-Robinson equation,
+/// `y_i' = -1000 (y_i - cos t) - sin t` (closed form `y_i = cos t` from `y_i(0) = 1`; the construction of
+/// Prothero and Robinson, 1974): the smooth solution lets the accuracy step
+/// grow beyond the stability limit `3.3 / 1000`, so Dormand-Prince 5(4) is
+/// held near the cap from its first steps, and with a dense Jacobian of
+/// this size the implicit scheme is predicted far dearer per unit time (the
+/// prior's dense LU; a tiny first step keeps the start explicit), so only
+/// the forced trial after a long held run switches. Over `[0, 1]` that
+/// trial comes (at t = 0.029, after 15 held steps of about 0.0023); over
+/// `[0, 0.045]` less than the 12 such steps a trial needs before it can be
+/// judged remains then, and none starts.
+#[test]
+fn no_trial_starts_without_room_to_judge_it() {
+    const N: usize = 150;
+    let f = |t: f64, y: &[f64], dy: &mut [f64]| {
+        for (d, &v) in dy.iter_mut().zip(y) {
+            *d = -1000.0 * (v - t.cos()) - t.sin();
+        }
+    };
+    let y0 = [1.0; N];
+    let opts = default_opts(1e-6, 1e-9)
+        .first_step(1e-6)
+        .output(Output::Final);
+    let long = integrate(f, (0.0, 1.0), &y0, &opts).unwrap();
+    assert!(
+        !long.switches().is_empty(),
+        "a long held run ends in a trial"
+    );
+    assert!((long.y_final()[0] - 1f64.cos()).abs() < 1e-5);
+    let short = integrate(f, (0.0, 0.045), &y0, &opts).unwrap();
+    assert!(
+        short.switches().is_empty(),
+        "switched with no room left: {:?}",
+        short.switches()
+    );
+    assert!((short.y_final()[0] - 0.045f64.cos()).abs() < 1e-5);
+}
+
 /// Asking for an analytic Jacobian from a system without one is refused
 /// at the door with a clear error.
 #[test]

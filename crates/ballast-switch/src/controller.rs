@@ -67,6 +67,8 @@ pub(crate) struct TakenStep {
     pub(crate) implicit: bool,
     /// The method that took it.
     pub(crate) method: Method,
+    /// What remains of the span after it (magnitude).
+    pub(crate) remaining: f64,
 }
 
 /// Drives one scheme, or a switching pair, over a time span.
@@ -88,6 +90,8 @@ pub struct Controller<S: System> {
     /// The active scheme's time, kept here so a step starts without a
     /// call through the scheme (every scheme advances by exactly `h`).
     t: f64,
+    /// The end of the span (the switching pair weighs what is left of it).
+    t_end: f64,
 }
 
 impl<S: System> std::fmt::Debug for Controller<S> {
@@ -150,6 +154,7 @@ impl<S: System> Controller<S> {
             implicit_active,
             method_active,
             t: t0,
+            t_end,
         };
         ctl.h = match (ctl.cfg.fixed_step, ctl.cfg.first_step) {
             (Some(h), _) => h,
@@ -377,6 +382,7 @@ impl<S: System> Controller<S> {
                                 capped,
                                 implicit: self.implicit_active,
                                 method: self.method_active,
+                                remaining: (self.t_end - self.t).abs(),
                             },
                             self.h,
                             &self.cfg,

@@ -26,7 +26,8 @@
 //! not favour it; a trial measured dearer switches back (after 12 implicit
 //! steps when clearly dearer, else after `min_steps_between_switches`) and
 //! lengthens the run needed for the next one, unless the stiffness has
-//! doubled since. A
+//! doubled since. No trial starts with less of the span left than the 12
+//! implicit steps it needs before it can be judged. A
 //! return to the explicit scheme is decided on a fresh spectral estimate
 //! (the implicit steps are long, and the stiffness may have grown since the
 //! last one).
@@ -476,7 +477,11 @@ impl<S: System> Switcher<S> {
                 .is_some_and(|r| s.rho >= PROBE_AGAIN_GROWTH * r);
             let probe = self.capped_run >= self.probe_after
                 || (stiffer && self.capped_run >= PROBE_AFTER_CAPPED_STEPS);
-            if implicit_rate >= explicit_rate && !probe {
+            // A trial is judged after `EARLY_RETURN_STEPS` implicit steps at
+            // the soonest: with less of the span left than that, it would
+            // only add the implicit scheme's start-up to the run.
+            let room = report.remaining >= EARLY_RETURN_STEPS as f64 * h_pred.max(h_explicit);
+            if implicit_rate >= explicit_rate && !(probe && room) {
                 return None;
             }
             self.switch(
