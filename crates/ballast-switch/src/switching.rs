@@ -181,6 +181,14 @@ impl CostMeter {
         }
     }
 
+    /// Drops the open run's time and steps and opens it again now: a
+    /// one-time cost fell inside it.
+    fn restart_run(&mut self) {
+        if self.run.is_some() {
+            self.run = Some((Instant::now(), self.steps));
+        }
+    }
+
     /// Mean seconds per step over the closed runs and the open one.
     fn seconds_per_step(&self) -> Option<f64> {
         let (mut seconds, mut steps) = (self.seconds, self.timed);
@@ -363,6 +371,7 @@ impl<S: System> Switcher<S> {
         stats: &mut ControlStats,
     ) -> Option<f64> {
         let m = self.monitor.as_mut()?;
+        let analyses = ballast_core::stability::analyses_done();
         // Cost of the step just taken.
         let rhs_now = p.counters.rhs_evals;
         let meter = if report.implicit {
@@ -400,6 +409,13 @@ impl<S: System> Switcher<S> {
             _ => None,
         };
         self.last_rhs = p.counters.rhs_evals;
+        if ballast_core::stability::analyses_done() != analyses {
+            // A stability region or ray was computed for the first time in
+            // this process (once only, tens of microseconds or more): it is
+            // no cost of either scheme.
+            self.explicit_cost.restart_run();
+            self.implicit_cost.restart_run();
+        }
         next
     }
 
@@ -629,5 +645,18 @@ mod tests {
         m.close_run();
         assert_eq!(m.timed, 8);
         assert!(m.seconds_per_step().unwrap() <= closed);
+        // A restarted run forgets its slow part: only later steps count.
+        let before = m.seconds_per_step().unwrap();
+        m.open_run();
+        std::thread::sleep(Duration::from_millis(20));
+        m.steps += 1;
+        m.restart_run();
+        m.steps += 2;
+        m.close_run();
+        assert_eq!(m.timed, 10);
+        assert!(
+            m.seconds_per_step().unwrap() <= before,
+            "the sleep was dropped"
+        );
     }
 }

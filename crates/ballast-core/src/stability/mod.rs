@@ -49,7 +49,7 @@ use num_complex::Complex64;
 
 pub use function::{Rational, StabilityFunction};
 pub use multistep::{CharPoly, Lmm, MAX_STEPS};
-pub use region::{ray_angle, Region, StabilitySummary, RAYS};
+pub use region::{analyses_done, ray_angle, Region, StabilitySummary, RAYS};
 
 use crate::explicit::tableau as ex;
 use crate::implicit::tableau as im;

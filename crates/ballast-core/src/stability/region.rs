@@ -29,6 +29,7 @@
 //! about `1e-5` rad of such a tangency.
 
 use std::f64::consts::{FRAC_PI_2, PI};
+use std::sync::atomic::{AtomicUsize, Ordering};
 use std::sync::OnceLock;
 
 use num_complex::Complex64;
@@ -124,9 +125,21 @@ fn opt(r: f64) -> Option<f64> {
     r.is_finite().then_some(r)
 }
 
+/// Regions built and rays computed so far in this process.
+static ANALYSES: AtomicUsize = AtomicUsize::new(0);
+
+/// How many regions have been built and rays computed in this process so
+/// far (by any thread). A caller timing its own work compares two readings
+/// to tell whether a one-time analysis (tens of microseconds for a ray,
+/// more for a region) fell inside the interval.
+pub fn analyses_done() -> usize {
+    ANALYSES.load(Ordering::Relaxed)
+}
+
 impl Region {
     /// Analyses the region of `function` (a method of classical `order`).
     pub fn new(name: impl Into<String>, function: StabilityFunction, order: usize) -> Region {
+        ANALYSES.fetch_add(1, Ordering::Relaxed);
         let (engine, explicit) = match &function {
             StabilityFunction::Multistep(p) => {
                 let branches = sample_locus(p);
@@ -211,7 +224,10 @@ impl Region {
 
     /// The reach along tabulated ray `j`, computed on first use.
     fn ray(&self, j: usize) -> f64 {
-        *self.rays[j].get_or_init(|| self.reach_along(ray_direction(j), false))
+        *self.rays[j].get_or_init(|| {
+            ANALYSES.fetch_add(1, Ordering::Relaxed);
+            self.reach_along(ray_direction(j), false)
+        })
     }
 
     /// Whether `z` is in the region (fast test for plotting: `|R| <= 1` for
