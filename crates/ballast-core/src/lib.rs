@@ -47,5 +47,5 @@ pub use method::{Method, SwitchPair};
 pub use norm::{Atol, ErrorNorm, Reduction};
 pub use options::{ImplicitOptions, JacobianSource, SchemeOptions};
 pub use problem::{Problem, WorkCounters};
-pub use scheme::{Attempt, Scheme, SchemeState, StepFailure};
+pub use scheme::{Attempt, NextStep, Scheme, SchemeState, StepFailure};
 pub use system::{ByRef, SparsityPattern, Structure, System, WithJacobian, WithStructure};

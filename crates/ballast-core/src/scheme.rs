@@ -34,15 +34,21 @@ pub struct Attempt {
     /// Weighted RMS norm of the local error estimate; `<= 1` means accept.
     /// Fixed-step methods without an estimate report 0.
     pub error: f64,
-    /// A step-size factor the scheme itself proposes for the next step
-    /// (multistep order selection, slow Newton convergence). `None` lets the
-    /// controller's accuracy rule decide.
-    pub factor: Option<f64>,
-    /// An upper bound on the next step's factor, whoever proposes it: an
-    /// implicit scheme whose Newton iteration contracted slowly limits the
-    /// growth that would make the next iteration fail. `f64::INFINITY`
-    /// when the scheme sets none.
-    pub max_factor: f64,
+    /// What the scheme says about the next step's size.
+    pub next: NextStep,
+}
+
+/// A scheme's say in the next step's size (the step-size factor).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum NextStep {
+    /// The controller's accuracy rule decides.
+    Accuracy,
+    /// The scheme proposes the factor itself (multistep order selection).
+    Factor(f64),
+    /// The accuracy rule decides, up to this factor: an implicit scheme
+    /// whose Newton iteration contracted slowly limits the growth that
+    /// would make the next iteration fail.
+    AtMost(f64),
 }
 
 impl Attempt {
@@ -50,14 +56,35 @@ impl Attempt {
     pub fn with_error(error: f64) -> Self {
         Self {
             error,
-            factor: None,
-            max_factor: f64::INFINITY,
+            next: NextStep::Accuracy,
         }
     }
 
     /// The same attempt with the next step's factor limited to `max_factor`.
     pub fn limited_to(self, max_factor: f64) -> Self {
-        Self { max_factor, ..self }
+        Self {
+            next: NextStep::AtMost(max_factor),
+            ..self
+        }
+    }
+
+    /// The factor the scheme proposes itself, if it does.
+    pub fn factor(&self) -> Option<f64> {
+        match self.next {
+            NextStep::Factor(f) => Some(f),
+            _ => None,
+        }
+    }
+
+    /// The next step's factor after an accepted step, given the accuracy
+    /// rule's `accuracy`.
+    #[inline]
+    pub fn next_factor(&self, accuracy: f64) -> f64 {
+        match self.next {
+            NextStep::Accuracy => accuracy,
+            NextStep::Factor(f) => f,
+            NextStep::AtMost(m) => accuracy.min(m),
+        }
     }
 }
 

@@ -7,7 +7,8 @@
 
 use ballast_core::control::{initial_step, PiController};
 use ballast_core::{
-    build, ErrorNorm, Method, Problem, Scheme, SchemeState, StepFailure, System, WorkCounters,
+    build, ErrorNorm, Method, NextStep, Problem, Scheme, SchemeState, StepFailure, System,
+    WorkCounters,
 };
 
 use crate::config::ControlConfig;
@@ -346,14 +347,7 @@ impl<S: System> Controller<S> {
                     }
                     if !fixed {
                         let q = self.active.error_order();
-                        let f = match a.factor {
-                            Some(f) => {
-                                self.pi.factor(a.error, q, true);
-                                f
-                            }
-                            None => self.pi.factor(a.error, q, true),
-                        };
-                        let f = if f > a.max_factor { a.max_factor } else { f };
+                        let f = a.next_factor(self.pi.factor(a.error, q, true));
                         // The next step size is on every step's critical path
                         // (the stages wait for it): plain comparisons, where
                         // `f64::min` / `max` add NaN handling (all values here
@@ -410,11 +404,12 @@ impl<S: System> Controller<S> {
                     self.active.reject();
                     self.stats.rejected += 1;
                     let q = self.active.error_order();
-                    let f = match a.factor {
-                        Some(f) => f.min(0.9),
-                        None => self.pi.factor(a.error, q, false),
+                    let f = match a.next {
+                        NextStep::Factor(f) => f.min(0.9),
+                        NextStep::Accuracy => self.pi.factor(a.error, q, false),
+                        NextStep::AtMost(m) => self.pi.factor(a.error, q, false).min(m),
                     };
-                    self.h = h_mag * f.min(a.max_factor);
+                    self.h = h_mag * f;
                     self.switcher.after_reject();
                 }
                 Err(failure) => {

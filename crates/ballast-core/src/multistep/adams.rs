@@ -33,7 +33,7 @@
 //!     let h_try = h.min(1.0 - adams.t());
 //!     let a = adams.attempt(&mut p, h_try, &norm).unwrap();
 //!     if a.error <= 1.0 { adams.accept(&mut p) } else { adams.reject() }
-//!     h = h_try * a.factor.unwrap();
+//!     h = h_try * a.factor().unwrap();
 //! }
 //! assert!((adams.y()[0] - (-1.0f64).exp()).abs() < 1e-7);
 //! assert!(adams.order() > 3, "the order has climbed from 1");

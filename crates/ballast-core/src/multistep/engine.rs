@@ -7,7 +7,7 @@ use super::nordsieck::Nordsieck;
 use super::order::{Decision, Estimates, OrderSelector};
 use super::HistoryError;
 use crate::norm::ErrorNorm;
-use crate::scheme::Attempt;
+use crate::scheme::{Attempt, NextStep};
 
 /// The common part of a Nordsieck multistep scheme.
 #[derive(Clone, Debug)]
@@ -187,8 +187,7 @@ impl Engine {
         };
         Attempt {
             error: current,
-            factor: Some(factor),
-            max_factor: f64::INFINITY,
+            next: NextStep::Factor(factor),
         }
     }
 

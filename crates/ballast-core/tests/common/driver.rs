@@ -3,7 +3,7 @@
 //! after a failed step, clipping at the end point.
 
 use ballast_core::control::{initial_step, PiController};
-use ballast_core::{Atol, ErrorNorm, Problem, Scheme, System, WorkCounters};
+use ballast_core::{Atol, ErrorNorm, NextStep, Problem, Scheme, System, WorkCounters};
 
 /// What a run cost.
 #[derive(Clone, Copy, Debug, Default)]
@@ -64,7 +64,7 @@ pub fn run<S: System>(
                 if last_failed {
                     f = f.min(1.0);
                 }
-                if let Some(g) = a.factor {
+                if let NextStep::Factor(g) | NextStep::AtMost(g) = a.next {
                     f = f.min(g);
                 }
                 h *= f;

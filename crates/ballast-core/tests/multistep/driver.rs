@@ -83,7 +83,7 @@ pub fn drive_on<S: System>(
                 accepted += 1;
                 fails = 0;
                 let pf = pi.factor(a.error, q, true);
-                let proposal = hm * a.factor.unwrap_or(pf);
+                let proposal = hm * a.next_factor(pf);
                 h = if last { proposal.max(h) } else { proposal };
                 observe(&*scheme);
             }
@@ -91,7 +91,7 @@ pub fn drive_on<S: System>(
                 scheme.reject();
                 rejected += 1;
                 let pf = pi.factor(a.error, q, false);
-                h = hm * a.factor.map_or(pf, |f| f.min(0.9));
+                h = hm * a.factor().map_or(pf, |f| f.min(0.9));
             }
             Err(e) => {
                 scheme.reject();
