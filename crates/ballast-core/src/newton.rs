@@ -45,6 +45,8 @@ pub struct NewtonControl {
     eta: f64,
     theta: f64,
     prev: f64,
+    /// The first increment's norm in the current (or last) solve.
+    first: f64,
     k: usize,
 }
 
@@ -57,6 +59,7 @@ impl NewtonControl {
             eta: 1.0,
             theta: 0.0,
             prev: 0.0,
+            first: 0.0,
             k: 0,
         }
     }
@@ -110,6 +113,9 @@ impl NewtonControl {
                 return NewtonStatus::TooSlow;
             }
         }
+        if self.k == 1 {
+            self.first = dx_norm;
+        }
         self.prev = dx_norm;
         if self.eta * dx_norm <= self.kappa || dx_norm == 0.0 {
             return NewtonStatus::Converged;
@@ -131,6 +137,22 @@ impl NewtonControl {
         self.theta
     }
 
+    /// The weighted norm of the first increment of the current (or last)
+    /// solve: how far the starting guess was from the solution.
+    pub fn first_increment(&self) -> f64 {
+        self.first
+    }
+
+    /// The contraction rate at which a solve starting as far from the
+    /// solution as the last one converges in `iters` iterations:
+    /// `theta^(iters - 1) * first_increment = kappa`.
+    pub fn rate_for(&self, iters: usize) -> f64 {
+        if self.first <= self.kappa || iters < 2 {
+            return 1.0;
+        }
+        (self.kappa / self.first).powf(1.0 / (iters - 1) as f64)
+    }
+
     /// The iteration cap.
     pub fn max_iters(&self) -> usize {
         self.max_iters
@@ -140,6 +162,23 @@ impl NewtonControl {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// A solve whose first increment was 1e3 times `kappa` reaches `kappa`
+    /// in 4 iterations at rate 0.1 (`0.1^3 * 1e3 = 1`); a start already
+    /// within `kappa` asks for no particular rate.
+    #[test]
+    fn rate_for_inverts_the_convergence_count() {
+        let mut c = NewtonControl::new(7);
+        c.set_tolerance(1e-6); // kappa = 1e-3
+        c.begin();
+        assert_eq!(c.update(1.0), NewtonStatus::Continue);
+        assert_eq!(c.first_increment(), 1.0);
+        assert!((c.rate_for(4) - 0.1).abs() < 1e-12);
+        assert!((c.rate_for(2) - 1e-3).abs() < 1e-15);
+        c.begin();
+        let _ = c.update(1e-4);
+        assert_eq!(c.rate_for(4), 1.0);
+    }
 
     #[test]
     fn growing_increments_diverge() {
