@@ -17,10 +17,11 @@
 //! and factorisations). A run is timed as a whole, one clock reading at
 //! its start and one per decision, so a step slowed by a one-time cost
 //! (the first use of the implicit scheme's memory, an interrupt) weighs
-//! as one step among all of the run, not as one sample among two. Before the implicit scheme has run once,
-//! its step is predicted as `PRIOR_RHS_PER_IMPLICIT_STEP` calls plus a
-//! dense LU at `PRIOR_SECONDS_PER_FLOP`; after the first switch
-//! measurements replace the prior.
+//! as one step among all of the run, not as one sample among two. Before
+//! the implicit scheme has run once, its step is predicted as
+//! `PRIOR_RHS_PER_IMPLICIT_STEP` calls plus a dense LU at
+//! `PRIOR_SECONDS_PER_FLOP`; after the first switch measurements replace
+//! the prior.
 //!
 //! A long held run triggers a trial switch even when the prediction does
 //! not favour it; a trial measured dearer switches back (after 12 implicit
