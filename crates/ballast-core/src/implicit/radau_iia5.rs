@@ -85,7 +85,6 @@ pub struct RadauIia5 {
     iter: IterationMatrix,
     newton: NewtonControl,
     last_theta: f64,
-    last_failed: bool,
     first: bool,
     rejected_last: bool,
 }
@@ -131,7 +130,6 @@ impl RadauIia5 {
             iter: IterationMatrix::new(n, structure, opts, true)?,
             newton: NewtonControl::new(opts.max_newton_iters),
             last_theta: 1.0,
-            last_failed: false,
             first: true,
             rejected_last: false,
         })
@@ -146,7 +144,6 @@ impl RadauIia5 {
         p.counters.newton_failures += 1;
         self.iter.after_failure();
         self.newton.reset();
-        self.last_failed = true;
         StepFailure::NewtonFailed
     }
 
@@ -308,7 +305,6 @@ impl<S: System> Scheme<S> for RadauIia5 {
         }
         self.first = true;
         self.rejected_last = false;
-        self.last_failed = false;
         self.last_theta = 1.0;
         self.iter.restart();
         self.newton.reset();
@@ -364,7 +360,6 @@ impl<S: System> Scheme<S> for RadauIia5 {
             self.fz[0] = y1;
             error = self.filtered_error(p, h, norm, true);
         }
-        self.last_failed = false;
         if error.is_finite() {
             let attempt = Attempt::with_error(error);
             let theta = self.newton.theta();
