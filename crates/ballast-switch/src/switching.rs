@@ -584,7 +584,17 @@ impl<S: System> Switcher<S> {
     ) -> Option<()> {
         let mut next = self.standby.take()?;
         let (t, from) = (active.t(), active.method());
+        // The outgoing scheme's run ends here: starting the other scheme
+        // (its first right-hand side, its first touch of memory) is no
+        // cost of the outgoing one.
+        let outgoing = if active.is_implicit() {
+            &mut self.implicit_cost
+        } else {
+            &mut self.explicit_cost
+        };
+        outgoing.close_run();
         if next.start(p, t, active.y()).is_err() {
+            outgoing.open_run();
             self.standby = Some(next);
             return None;
         }
@@ -600,10 +610,7 @@ impl<S: System> Switcher<S> {
         });
         stats.switches += 1;
         if active.is_implicit() {
-            self.explicit_cost.close_run();
             self.implicit_cost.open_run();
-        } else {
-            self.implicit_cost.close_run();
         }
         if let Some(m) = self.monitor.as_mut() {
             m.watch_closely();
