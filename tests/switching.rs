@@ -323,6 +323,38 @@ fn no_trial_starts_without_room_to_judge_it() {
     assert!((short.y_final()[0] - 0.045f64.cos()).abs() < 1e-5);
 }
 
+/// Prothero–Robinson with lambda = -1e6 (Prothero and Robinson 1974;
+/// closed form `y = sin t`) is stiff from the first step: the pair opens on
+/// Radau IIA 5, recorded as a switch at `t0`, and the explicit scheme is
+/// never built. The run is then Radau IIA 5's own run, step for step and
+/// bit for bit, plus the products of the first spectral estimate: the
+/// slope at `t0` is evaluated once and handed to the scheme that opens.
+#[test]
+fn a_run_stiff_from_the_start_opens_on_the_implicit_scheme() {
+    let pr = ballast_models::ProtheroRobinson::default();
+    let opts = default_opts(1e-6, 1e-9).output(Output::Final);
+    let pair = integrate(pr.clone(), (0.0, 10.0), &pr.initial_value(), &opts).unwrap();
+    let alone = integrate(
+        pr.clone(),
+        (0.0, 10.0),
+        &pr.initial_value(),
+        &opts.clone().method(Method::RadauIIA5),
+    )
+    .unwrap();
+    let sw = pair.switches();
+    assert_eq!(sw.len(), 1, "{sw:?}");
+    assert_eq!((sw[0].t, sw[0].to), (0.0, Method::RadauIIA5));
+    let (p, a) = (pair.stats(), alone.stats());
+    assert_eq!(p.accepted, a.accepted);
+    assert_eq!(
+        p.rhs_evals,
+        a.rhs_evals + p.spectral_products,
+        "{p:?}\n{a:?}"
+    );
+    assert_eq!(pair.y_final(), alone.y_final());
+    assert!((pair.y_final()[0] - pr.exact(10.0)[0]).abs() < 1e-5);
+}
+
 /// Asking for an analytic Jacobian from a system without one is refused
 /// at the door with a clear error.
 #[test]

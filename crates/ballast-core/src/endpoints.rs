@@ -43,13 +43,15 @@ impl Endpoints {
         }
     }
 
-    /// Starts at `(t, y)` with no step taken and evaluates `f = f(t, y)`;
-    /// a non-finite slope is [`StepFailure::NonFinite`].
+    /// Starts at `(t, y)` with no step taken and fills `f = f(t, y)`:
+    /// copied from `slope` when given, else evaluated. A non-finite slope
+    /// is [`StepFailure::NonFinite`].
     pub(crate) fn start<S: System>(
         &mut self,
         p: &mut Problem<S>,
         t: f64,
         y: &[f64],
+        slope: Option<&[f64]>,
         f: &mut [f64],
     ) -> Result<(), StepFailure> {
         self.t = t;
@@ -57,7 +59,10 @@ impl Endpoints {
         self.y.copy_from_slice(y);
         self.y_prev.copy_from_slice(y);
         self.h_last = 0.0;
-        p.rhs(t, &self.y, f);
+        match slope {
+            Some(known) => f.copy_from_slice(known),
+            None => p.rhs(t, &self.y, f),
+        }
         self.have_f = f.iter().all(|v| v.is_finite());
         if self.have_f {
             Ok(())

@@ -161,7 +161,20 @@ pub trait Scheme<S: System>: SchemeState {
     /// Sets the state to `(t, y)` and prepares to step from it. Used at the
     /// start of a run, after a hand-over from another scheme, and after a
     /// discontinuity. Multistep schemes restart at low order.
-    fn start(&mut self, p: &mut Problem<S>, t: f64, y: &[f64]) -> Result<(), StepFailure>;
+    fn start(&mut self, p: &mut Problem<S>, t: f64, y: &[f64]) -> Result<(), StepFailure> {
+        self.start_with(p, t, y, None)
+    }
+
+    /// [`Scheme::start`] with the slope `f(t, y)` given when the caller
+    /// has it (the controller's first evaluation, or the slope of the
+    /// scheme handing over): it is copied instead of evaluated again.
+    fn start_with(
+        &mut self,
+        p: &mut Problem<S>,
+        t: f64,
+        y: &[f64],
+        slope: Option<&[f64]>,
+    ) -> Result<(), StepFailure>;
 
     /// Attempts one step of size `h` (negative when integrating backwards)
     /// from the current state. Does not change the state until `accept`.

@@ -132,13 +132,15 @@ impl<S: System> Controller<S> {
                 return Err(SetupError::MissingJacobian);
             }
         }
-        let (mut active, switcher) = Switcher::new(cfg.method, n, &structure, &cfg)?;
+        let (active, switcher) = Switcher::new(cfg.method, n, structure, &cfg)?;
         if cfg.fixed_step.is_none() && !active.has_error_estimate() {
             return Err(SetupError::FixedStepRequired(active.method()));
         }
-        active
-            .start(&mut problem, t0, y0)
-            .map_err(|_| SetupError::NonFiniteInitialRhs { t: t0 })?;
+        let mut f0 = vec![0.0; n];
+        problem.rhs(t0, y0, &mut f0);
+        if !f0.iter().all(|v| v.is_finite()) {
+            return Err(SetupError::NonFiniteInitialRhs { t: t0 });
+        }
         let direction = if t_end >= t0 { 1.0 } else { -1.0 };
         let span = (t_end - t0).abs();
         let (implicit_active, method_active) = (active.is_implicit(), active.method());
@@ -160,17 +162,21 @@ impl<S: System> Controller<S> {
         ctl.h = match (ctl.cfg.fixed_step, ctl.cfg.first_step) {
             (Some(h), _) => h,
             (None, Some(h)) => h,
-            (None, None) => ctl.automatic_first_step(),
+            (None, None) => {
+                let order = ctl.switcher.opening_order(ctl.active.as_ref());
+                ctl.automatic_first_step(t0, y0, &f0, order)
+            }
         }
         .min(ctl.cfg.max_step)
         .min(span.max(f64::MIN_POSITIVE));
         if let Some(h) = ctl.switcher.at_start(
             &mut ctl.problem,
             &mut ctl.active,
+            (t0, y0, &f0),
             ctl.h,
             &ctl.cfg,
             &mut ctl.stats,
-        ) {
+        )? {
             ctl.h = h.min(ctl.cfg.max_step);
         }
         ctl.implicit_active = ctl.active.is_implicit();
@@ -179,26 +185,16 @@ impl<S: System> Controller<S> {
         Ok(ctl)
     }
 
-    fn automatic_first_step(&mut self) -> f64 {
+    /// The first step from `(t0, y0)` with slope `f0` for a method of `order`.
+    fn automatic_first_step(&mut self, t0: f64, y0: &[f64], f0: &[f64], order: usize) -> f64 {
         let n = self.problem.n;
-        let t0 = self.active.t();
-        let y0 = self.active.y().to_vec();
-        let f0 = match self.active.dydt() {
-            Some(f) => f.to_vec(),
-            None => {
-                let mut f = vec![0.0; n];
-                self.problem.rhs(t0, &y0, &mut f);
-                f
-            }
-        };
         let (mut y1, mut f1) = (vec![0.0; n], vec![0.0; n]);
-        let order = self.active.order();
         let p = &mut self.problem;
         initial_step(
             &self.norm,
             t0,
-            &y0,
-            &f0,
+            y0,
+            f0,
             order,
             self.direction,
             &mut y1,

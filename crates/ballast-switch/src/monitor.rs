@@ -193,9 +193,23 @@ impl Monitor {
         scheme: &dyn SchemeState,
         stats: &mut ControlStats,
     ) {
-        let t = scheme.t();
-        self.y.copy_from_slice(scheme.y());
-        match scheme.dydt() {
+        let stage = scheme.stage_spectral_estimate();
+        self.estimate_at(p, scheme.t(), scheme.y(), scheme.dydt(), stage, stats);
+    }
+
+    /// Runs the power iteration at `(t, y)`, with the slope `f(t, y)` when
+    /// known (else one call evaluates it) and the stage estimate there.
+    pub(crate) fn estimate_at<S: System>(
+        &mut self,
+        p: &mut Problem<S>,
+        t: f64,
+        y: &[f64],
+        slope: Option<&[f64]>,
+        stage: Option<f64>,
+        stats: &mut ControlStats,
+    ) {
+        self.y.copy_from_slice(y);
+        match slope {
             Some(f) => self.fy.copy_from_slice(f),
             None => p.rhs(t, &self.y, &mut self.fy),
         }
@@ -217,7 +231,7 @@ impl Monitor {
         }
         self.steps_since = 0;
         self.rejections = 0;
-        self.stage_ref = scheme.stage_spectral_estimate();
+        self.stage_ref = stage;
         if est.radius.is_finite() {
             self.latest = Some(Spectrum {
                 rho: est.radius,

@@ -1,7 +1,10 @@
 //! Which scheme runs, how far its step may go, and when to switch.
 //!
 //! An explicit scheme is capped at `h_stab = cap_safety * r(theta) / rho`
-//! (see [`crate::monitor`]). A switching pair starts explicit; it moves to
+//! (see [`crate::monitor`]). A switching pair starts explicit (unless the
+//! first estimate already holds the explicit scheme below the first step
+//! and the implicit one is expected cheaper: then it opens implicit and
+//! builds the explicit scheme only if the run returns to it); it moves to
 //! the implicit scheme when the cap has held the step for
 //! `capped_steps_to_switch` accepted steps and the implicit scheme's
 //! expected cost per unit time is lower, and back when the implicit step
@@ -203,10 +206,46 @@ impl CostMeter {
     }
 }
 
+/// The scheme of a pair that is not running.
+enum Standby<S: System> {
+    /// A single method: there is no other scheme.
+    Absent,
+    /// Not built yet: the explicit scheme of a pair whose run opened on
+    /// the implicit one is built only if the run ever returns to it.
+    Named(Method),
+    Built(Box<dyn Scheme<S>>),
+}
+
+impl<S: System> Standby<S> {
+    fn exists(&self) -> bool {
+        !matches!(self, Standby::Absent)
+    }
+
+    /// The method, and the order whose stability region applies to it.
+    fn method_and_order(&self) -> Option<(Method, usize)> {
+        match self {
+            Standby::Absent => None,
+            Standby::Named(m) => Some((*m, starting_order(*m))),
+            Standby::Built(s) => Some((s.method(), s.order())),
+        }
+    }
+}
+
+/// The order a freshly started scheme of `method` steps at: multistep
+/// schemes start at order 1.
+fn starting_order(method: Method) -> usize {
+    match method {
+        Method::Adams | Method::Bdf => 1,
+        m => m.order().unwrap_or(1),
+    }
+}
+
 /// The switching state of a run: the standby scheme of a pair (if any),
 /// the stiffness monitor, and the record of switches.
 pub(crate) struct Switcher<S: System> {
-    standby: Option<Box<dyn Scheme<S>>>,
+    standby: Standby<S>,
+    /// The structure of the Jacobian, kept to build a named standby.
+    structure: Structure,
     monitor: Option<Monitor>,
     records: Vec<SwitchRecord>,
     n: usize,
@@ -230,11 +269,15 @@ pub(crate) struct Switcher<S: System> {
 }
 
 impl<S: System> Switcher<S> {
-    /// Builds the scheme that starts the run, and the switcher around it.
+    /// Builds the scheme the run holds before it opens, and the switcher
+    /// around it. For a pair that is the implicit scheme (built at once, so
+    /// that its options are checked before the run), with the explicit one
+    /// named: [`Self::at_start`] decides which opens the run and builds the
+    /// explicit scheme only if it does.
     pub(crate) fn new(
         method: Method,
         n: usize,
-        structure: &Structure,
+        structure: Structure,
         cfg: &ControlConfig,
     ) -> Result<(Box<dyn Scheme<S>>, Self), SetupError> {
         let (first, standby) = match method {
@@ -245,19 +288,20 @@ impl<S: System> Switcher<S> {
                     }
                     ballast_core::SwitchPair::AdamsBdf => (Method::Adams, Method::Bdf),
                 };
-                (
-                    build_scheme::<S>(e, n, structure, cfg)?,
-                    Some(build_scheme::<S>(i, n, structure, cfg)?),
-                )
+                (build_scheme::<S>(i, n, &structure, cfg)?, Standby::Named(e))
             }
-            single => (build_scheme::<S>(single, n, structure, cfg)?, None),
+            single => (
+                build_scheme::<S>(single, n, &structure, cfg)?,
+                Standby::Absent,
+            ),
         };
-        let monitored = standby.is_some()
+        let monitored = standby.exists()
             || (cfg.stability_cap && cfg.fixed_step.is_none() && !first.is_implicit());
         Ok((
             first,
             Self {
                 standby,
+                structure,
                 monitor: monitored.then(|| Monitor::new(n)),
                 records: Vec::new(),
                 n,
@@ -288,32 +332,71 @@ impl<S: System> Switcher<S> {
             .map(|s| (s.rho, s.lambda))
     }
 
-    /// First estimate before the first step, so that step is capped too.
-    /// A pair whose explicit scheme would be held far below the first step
-    /// `h0` starts on the implicit scheme; the new first step is returned.
+    /// The order for the first step's size: that of the scheme the run
+    /// would open with, the explicit one of a pair.
+    pub(crate) fn opening_order(&self, first: &dyn SchemeState) -> usize {
+        match &self.standby {
+            Standby::Named(m) => starting_order(*m),
+            _ => first.order(),
+        }
+    }
+
+    /// Opens the run at `(t0, y0)` with the slope `f0` known: starts the
+    /// scheme and takes a first estimate, so the first step is capped too.
+    /// A pair opens on its explicit scheme (built here) unless that scheme
+    /// would be held far below the first step `h0`: then it opens on the
+    /// implicit one, recorded as a switch, and the step to take is returned.
     pub(crate) fn at_start(
         &mut self,
         p: &mut Problem<S>,
         active: &mut Box<dyn Scheme<S>>,
+        (t0, y0, f0): (f64, &[f64], &[f64]),
         h0: f64,
         cfg: &ControlConfig,
         stats: &mut ControlStats,
-    ) -> Option<f64> {
-        if let Some(m) = self.monitor.as_mut() {
-            m.estimate(p, active.as_ref(), stats);
-        }
-        self.refresh_cap(active.as_ref(), cfg);
+    ) -> Result<Option<f64>, SetupError> {
+        let not_finite = |_| SetupError::NonFiniteInitialRhs { t: t0 };
+        let Standby::Named(explicit) = self.standby else {
+            active.start_with(p, t0, y0, Some(f0)).map_err(not_finite)?;
+            if let Some(m) = self.monitor.as_mut() {
+                m.estimate(p, active.as_ref(), stats);
+            }
+            self.refresh_cap(active.as_ref(), cfg);
+            self.last_rhs = p.counters.rhs_evals;
+            return Ok(None);
+        };
+        let rho = self.monitor.as_mut().and_then(|m| {
+            m.estimate_at(p, t0, y0, Some(f0), None, stats);
+            m.latest().map(|s| s.rho)
+        });
+        self.refresh_cap_for(explicit, starting_order(explicit), cfg);
+        let implicit_cheaper = self.cap.is_some_and(|cap| {
+            self.implicit_step_seconds() / h0 < self.explicit_step_seconds() / cap
+        });
+        let opened = match rho {
+            Some(rho) if implicit_cheaper => {
+                active.start_with(p, t0, y0, Some(f0)).map_err(not_finite)?;
+                self.note_switch(
+                    t0,
+                    explicit,
+                    active.as_ref(),
+                    SwitchReason::StabilityBound,
+                    h0,
+                    rho,
+                    stats,
+                );
+                Some(h0)
+            }
+            _ => {
+                let mut e = build_scheme::<S>(explicit, self.n, &self.structure, cfg)?;
+                e.start_with(p, t0, y0, Some(f0)).map_err(not_finite)?;
+                std::mem::swap(active, &mut e);
+                self.standby = Standby::Built(e);
+                None
+            }
+        };
         self.last_rhs = p.counters.rhs_evals;
-        let cap = self.cap?;
-        let rho = self.monitor.as_ref()?.latest()?.rho;
-        let explicit_rate = self.explicit_step_seconds() / cap;
-        let implicit_rate = self.implicit_step_seconds() / h0;
-        if self.standby.is_none() || implicit_rate >= explicit_rate {
-            return None;
-        }
-        self.switch(p, active, SwitchReason::StabilityBound, h0, rho, stats)?;
-        self.last_rhs = p.counters.rhs_evals;
-        Some(h0)
+        Ok(opened)
     }
 
     /// The stability cap (step magnitude) for the next step of `active`.
@@ -322,14 +405,20 @@ impl<S: System> Switcher<S> {
     }
 
     fn refresh_cap(&mut self, active: &dyn SchemeState, cfg: &ControlConfig) {
-        self.cap = None;
-        if active.is_implicit() || !cfg.stability_cap || cfg.fixed_step.is_some() {
+        if active.is_implicit() {
+            self.cap = None;
             return;
         }
-        let (Some(m), Some(region)) = (
-            self.monitor.as_ref(),
-            current_region(active.method(), active.order()),
-        ) else {
+        self.refresh_cap_for(active.method(), active.order(), cfg);
+    }
+
+    /// The cap for an explicit `method` stepping at `order`.
+    fn refresh_cap_for(&mut self, method: Method, order: usize, cfg: &ControlConfig) {
+        self.cap = None;
+        if !cfg.stability_cap || cfg.fixed_step.is_some() {
+            return;
+        }
+        let (Some(m), Some(region)) = (self.monitor.as_ref(), current_region(method, order)) else {
             return;
         };
         let Some(s) = m.latest() else { return };
@@ -405,7 +494,7 @@ impl<S: System> Switcher<S> {
         }
         let spectrum = self.monitor.as_ref().and_then(|m| m.latest());
         let look = !report.implicit || self.since_switch % RETURN_CHECK_EVERY == 0;
-        let next = match (self.standby.is_some() && look, spectrum) {
+        let next = match (self.standby.exists() && look, spectrum) {
             (true, Some(s)) => self.consider_switch(p, active, report, h_next, s, cfg, stats),
             _ => None,
         };
@@ -459,10 +548,7 @@ impl<S: System> Switcher<S> {
         stats: &mut ControlStats,
     ) -> Option<f64> {
         let th = &cfg.switching;
-        let (standby_method, standby_order) = {
-            let sb = self.standby.as_ref()?;
-            (sb.method(), sb.order())
-        };
+        let (standby_method, standby_order) = self.standby.method_and_order()?;
         if !report.implicit {
             let held = report.capped
                 || self
@@ -507,7 +593,7 @@ impl<S: System> Switcher<S> {
                 SwitchReason::StabilityBound,
                 h_pred,
                 s.rho,
-                stats,
+                (cfg, stats),
             )?;
             Some(h_pred)
         } else {
@@ -567,7 +653,7 @@ impl<S: System> Switcher<S> {
                 return None;
             };
             self.h_implicit_seen = h_now;
-            self.switch(p, active, reason, h_explicit, s.rho, stats)?;
+            self.switch(p, active, reason, h_explicit, s.rho, (cfg, stats))?;
             self.refresh_cap(active.as_ref(), cfg);
             Some(h_explicit)
         }
@@ -580,9 +666,19 @@ impl<S: System> Switcher<S> {
         reason: SwitchReason,
         h: f64,
         rho: f64,
-        stats: &mut ControlStats,
+        (cfg, stats): (&ControlConfig, &mut ControlStats),
     ) -> Option<()> {
-        let mut next = self.standby.take()?;
+        let mut next = match std::mem::replace(&mut self.standby, Standby::Absent) {
+            Standby::Built(s) => s,
+            Standby::Named(m) => match build_scheme::<S>(m, self.n, &self.structure, cfg) {
+                Ok(s) => s,
+                Err(_) => {
+                    self.standby = Standby::Named(m);
+                    return None;
+                }
+            },
+            Standby::Absent => return None,
+        };
         let (t, from) = (active.t(), active.method());
         // The outgoing scheme's run ends here: starting the other scheme
         // (its first right-hand side, its first touch of memory) is no
@@ -595,21 +691,38 @@ impl<S: System> Switcher<S> {
         outgoing.close_run();
         if next.start(p, t, active.y()).is_err() {
             outgoing.open_run();
-            self.standby = Some(next);
+            self.standby = Standby::Built(next);
             return None;
         }
         std::mem::swap(active, &mut next);
-        self.standby = Some(next);
+        self.standby = Standby::Built(next);
+        self.note_switch(t, from, active.as_ref(), reason, h, rho, stats);
+        Some(())
+    }
+
+    /// Records a switch from `from` to `to` (now running) and resets the
+    /// runs and the cap that belonged to the scheme left.
+    #[allow(clippy::too_many_arguments)]
+    fn note_switch(
+        &mut self,
+        t: f64,
+        from: Method,
+        to: &dyn SchemeState,
+        reason: SwitchReason,
+        h: f64,
+        rho: f64,
+        stats: &mut ControlStats,
+    ) {
         self.records.push(SwitchRecord {
             t,
             from,
-            to: active.method(),
+            to: to.method(),
             reason,
             h,
             rho,
         });
         stats.switches += 1;
-        if active.is_implicit() {
+        if to.is_implicit() {
             self.implicit_cost.open_run();
         }
         if let Some(m) = self.monitor.as_mut() {
@@ -619,7 +732,6 @@ impl<S: System> Switcher<S> {
         self.capped_run = 0;
         self.fitting_run = 0;
         self.cap = None;
-        Some(())
     }
 }
 

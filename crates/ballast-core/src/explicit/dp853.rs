@@ -227,11 +227,17 @@ impl SchemeState for Dp853 {
 }
 
 impl<S: System> Scheme<S> for Dp853 {
-    fn start(&mut self, p: &mut Problem<S>, t: f64, y: &[f64]) -> Result<(), StepFailure> {
+    fn start_with(
+        &mut self,
+        p: &mut Problem<S>,
+        t: f64,
+        y: &[f64],
+        slope: Option<&[f64]>,
+    ) -> Result<(), StepFailure> {
         self.first = 0;
         self.dense_first = 0;
         self.spectral = None;
-        self.ends.start(p, t, y, &mut self.k[0])
+        self.ends.start(p, t, y, slope, &mut self.k[0])
     }
 
     fn attempt(

@@ -382,9 +382,15 @@ fn stage_difference<const T: usize>(
 }
 
 impl<S: System> Scheme<S> for ExplicitRk {
-    fn start(&mut self, p: &mut Problem<S>, t: f64, y: &[f64]) -> Result<(), StepFailure> {
+    fn start_with(
+        &mut self,
+        p: &mut Problem<S>,
+        t: f64,
+        y: &[f64],
+        slope: Option<&[f64]>,
+    ) -> Result<(), StepFailure> {
         self.swapped_first = None;
-        self.ends.start(p, t, y, &mut self.k[0])
+        self.ends.start(p, t, y, slope, &mut self.k[0])
     }
 
     fn attempt(

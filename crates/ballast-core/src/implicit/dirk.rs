@@ -228,11 +228,17 @@ impl SchemeState for Dirk {
 }
 
 impl<S: System> Scheme<S> for Dirk {
-    fn start(&mut self, p: &mut Problem<S>, t: f64, y: &[f64]) -> Result<(), StepFailure> {
+    fn start_with(
+        &mut self,
+        p: &mut Problem<S>,
+        t: f64,
+        y: &[f64],
+        slope: Option<&[f64]>,
+    ) -> Result<(), StepFailure> {
         self.iter.restart();
         self.newton.reset();
         self.last_failed = false;
-        let started = self.ends.start(p, t, y, &mut self.f0);
+        let started = self.ends.start(p, t, y, slope, &mut self.f0);
         self.f_prev.copy_from_slice(&self.f0);
         started
     }

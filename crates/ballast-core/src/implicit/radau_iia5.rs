@@ -299,7 +299,13 @@ impl SchemeState for RadauIia5 {
 }
 
 impl<S: System> Scheme<S> for RadauIia5 {
-    fn start(&mut self, p: &mut Problem<S>, t: f64, y: &[f64]) -> Result<(), StepFailure> {
+    fn start_with(
+        &mut self,
+        p: &mut Problem<S>,
+        t: f64,
+        y: &[f64],
+        slope: Option<&[f64]>,
+    ) -> Result<(), StepFailure> {
         for c in self.cont.iter_mut() {
             c.fill(0.0);
         }
@@ -308,7 +314,7 @@ impl<S: System> Scheme<S> for RadauIia5 {
         self.last_theta = 1.0;
         self.iter.restart();
         self.newton.reset();
-        self.ends.start(p, t, y, &mut self.f0)
+        self.ends.start(p, t, y, slope, &mut self.f0)
     }
 
     fn attempt(

@@ -170,8 +170,14 @@ impl SchemeState for Adams {
 }
 
 impl<S: System> Scheme<S> for Adams {
-    fn start(&mut self, p: &mut Problem<S>, t: f64, y: &[f64]) -> Result<(), StepFailure> {
-        p.rhs(t, y, &mut self.e.dydt);
+    fn start_with(
+        &mut self,
+        p: &mut Problem<S>,
+        t: f64,
+        y: &[f64],
+        slope: Option<&[f64]>,
+    ) -> Result<(), StepFailure> {
+        self.e.take_slope(p, t, y, slope);
         self.stiffness = None;
         if !self.e.dydt.iter().all(|v| v.is_finite()) {
             return Err(StepFailure::NonFinite);

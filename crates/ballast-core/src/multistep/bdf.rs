@@ -171,8 +171,14 @@ impl SchemeState for Bdf {
 }
 
 impl<S: System> Scheme<S> for Bdf {
-    fn start(&mut self, p: &mut Problem<S>, t: f64, y: &[f64]) -> Result<(), StepFailure> {
-        p.rhs(t, y, &mut self.e.dydt);
+    fn start_with(
+        &mut self,
+        p: &mut Problem<S>,
+        t: f64,
+        y: &[f64],
+        slope: Option<&[f64]>,
+    ) -> Result<(), StepFailure> {
+        self.e.take_slope(p, t, y, slope);
         if !self.e.dydt.iter().all(|v| v.is_finite()) {
             return Err(StepFailure::NonFinite);
         }

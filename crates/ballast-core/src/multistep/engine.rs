@@ -70,6 +70,20 @@ impl Engine {
         self.next_order
     }
 
+    /// Fills `dydt = f(t, y)`: copied from `slope` when given, else evaluated.
+    pub fn take_slope<S: crate::system::System>(
+        &mut self,
+        p: &mut crate::problem::Problem<S>,
+        t: f64,
+        y: &[f64],
+        slope: Option<&[f64]>,
+    ) {
+        match slope {
+            Some(known) => self.dydt.copy_from_slice(known),
+            None => p.rhs(t, y, &mut self.dydt),
+        }
+    }
+
     /// Restarts from `(t, y)` with `dydt` already holding `f(t, y)`: order 1.
     pub fn start(&mut self, t: f64, y: &[f64]) {
         self.t = t;
