@@ -160,8 +160,8 @@ where
 /// ```
 #[derive(Clone, Debug)]
 pub struct FdJvp {
-    y_pert: Vec<f64>,
-    f_pert: Vec<f64>,
+    /// `y + e v`, then `f(y + e v)`, in one allocation.
+    pert: Vec<f64>,
     /// Typical sizes for [`fd_increment_typical`]; empty: [`fd_increment`].
     typical: Vec<f64>,
     evals: usize,
@@ -171,8 +171,7 @@ impl FdJvp {
     /// Scratch for dimension `n`.
     pub fn new(n: usize) -> Self {
         Self {
-            y_pert: vec![0.0; n],
-            f_pert: vec![0.0; n],
+            pert: vec![0.0; 2 * n],
             typical: Vec::new(),
             evals: 0,
         }
@@ -180,7 +179,7 @@ impl FdJvp {
 
     /// The dimension `n`.
     pub fn dim(&self) -> usize {
-        self.y_pert.len()
+        self.pert.len() / 2
     }
 
     /// Sets per-component typical sizes: the increment becomes
@@ -246,7 +245,8 @@ impl FdJvp {
         F: FnMut(&[f64], &mut [f64]) + ?Sized,
     {
         let e = self.increment(y, v);
-        let e = fd_jvp_with(f, e, y, fy, v, &mut self.y_pert, &mut self.f_pert, out);
+        let (y_pert, f_pert) = self.pert.split_at_mut(y.len());
+        let e = fd_jvp_with(f, e, y, fy, v, y_pert, f_pert, out);
         if e != 0.0 {
             self.evals += 1;
         }

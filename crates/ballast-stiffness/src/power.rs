@@ -92,25 +92,70 @@ pub struct SpectralEstimator {
     fd: FdJvp,
 }
 
-/// The vectors of the iteration.
+/// The state of the iteration between calls.
 #[derive(Clone, Debug)]
 struct Work {
     n: usize,
-    /// Current unit iterate.
-    x: Vec<f64>,
-    /// `J x`.
-    y: Vec<f64>,
-    /// Previous unit iterate.
-    x_prev: Vec<f64>,
-    /// `J x_prev` (a multiple of `x`).
-    y_prev: Vec<f64>,
-    /// Scratch: `x - c x_prev`, the second basis direction.
-    w: Vec<f64>,
-    /// Scratch: `J w`.
-    z: Vec<f64>,
+    /// The six vectors of [`Vectors`] in one allocation (an estimator is
+    /// built for every run of the switching controller, short ones too).
+    /// Between calls the first `n` entries hold the kept iterate `x`.
+    buf: Vec<f64>,
     rng: Rng,
     /// `x` holds a dominant vector from an earlier call.
     has_vector: bool,
+}
+
+/// The vectors of one call, borrowed from [`Work::buf`].
+struct Vectors<'a> {
+    /// Current unit iterate.
+    x: &'a mut [f64],
+    /// `J x`.
+    y: &'a mut [f64],
+    /// Previous unit iterate.
+    x_prev: &'a mut [f64],
+    /// `J x_prev` (a multiple of `x`).
+    y_prev: &'a mut [f64],
+    /// Scratch: `x - c x_prev`, the second basis direction.
+    w: &'a mut [f64],
+    /// Scratch: `J w`.
+    z: &'a mut [f64],
+    /// `x` and `x_prev` have changed places an odd number of times: the
+    /// first slot of the buffer is `x_prev`'s.
+    exchanged: bool,
+}
+
+impl<'a> Vectors<'a> {
+    fn of(buf: &'a mut [f64], n: usize) -> Self {
+        let (x, rest) = buf.split_at_mut(n);
+        let (y, rest) = rest.split_at_mut(n);
+        let (x_prev, rest) = rest.split_at_mut(n);
+        let (y_prev, rest) = rest.split_at_mut(n);
+        let (w, z) = rest.split_at_mut(n);
+        Self {
+            x,
+            y,
+            x_prev,
+            y_prev,
+            w,
+            z,
+            exchanged: false,
+        }
+    }
+
+    /// The next iterate takes the place of the previous one.
+    fn advance(&mut self) {
+        swap(&mut self.x, &mut self.x_prev);
+        swap(&mut self.y, &mut self.y_prev);
+        self.exchanged = !self.exchanged;
+    }
+
+    /// Puts `x` back into the buffer's first slot, where the next call
+    /// (and [`SpectralEstimator::vector`]) looks for it.
+    fn keep_x(self) {
+        if self.exchanged {
+            self.x_prev.copy_from_slice(self.x);
+        }
+    }
 }
 
 impl SpectralEstimator {
@@ -124,12 +169,7 @@ impl SpectralEstimator {
         Self {
             work: Work {
                 n,
-                x: vec![0.0; n],
-                y: vec![0.0; n],
-                x_prev: vec![0.0; n],
-                y_prev: vec![0.0; n],
-                w: vec![0.0; n],
-                z: vec![0.0; n],
+                buf: vec![0.0; 6 * n],
                 rng: Rng::new(seed),
                 has_vector: false,
             },
@@ -144,7 +184,8 @@ impl SpectralEstimator {
 
     /// The dominant vector kept for the next warm start (unit length), if any.
     pub fn vector(&self) -> Option<&[f64]> {
-        self.work.has_vector.then_some(self.work.x.as_slice())
+        let n = self.work.n;
+        self.work.has_vector.then_some(&self.work.buf[..n])
     }
 
     /// The finite-difference scratch of [`SpectralEstimator::estimate_fd`],
@@ -164,7 +205,8 @@ impl SpectralEstimator {
         check_len("start vector", self.work.n, v.len())?;
         let nv = norm(v);
         if nv > 0.0 && nv.is_finite() {
-            scale_into(1.0 / nv, v, &mut self.work.x);
+            let n = self.work.n;
+            scale_into(1.0 / nv, v, &mut self.work.buf[..n]);
             self.work.has_vector = true;
         } else {
             self.work.has_vector = false;
@@ -211,17 +253,17 @@ impl SpectralEstimator {
 
 impl Work {
     /// Fills `x` with the start vector.
-    fn start(&mut self, warm: bool, perturbation: f64) {
+    fn start(v: &mut Vectors<'_>, rng: &mut Rng, warm: bool, perturbation: f64) {
         if warm {
-            self.rng.fill_unit(&mut self.w);
-            axpy(perturbation, &self.w, &mut self.x);
-            let nx = norm(&self.x);
+            rng.fill_unit(v.w);
+            axpy(perturbation, v.w, v.x);
+            let nx = norm(v.x);
             if nx > 0.0 && nx.is_finite() {
-                scale(1.0 / nx, &mut self.x);
+                scale(1.0 / nx, v.x);
                 return;
             }
         }
-        self.rng.fill_unit(&mut self.x);
+        rng.fill_unit(v.x);
     }
 
     fn run(
@@ -232,17 +274,24 @@ impl Work {
         if self.n == 0 {
             return SpectralEstimate::zero(0);
         }
+        let Work {
+            n,
+            buf,
+            rng,
+            has_vector,
+        } = self;
+        let mut v = Vectors::of(buf, *n);
         let max_products = opts.max_products.max(1);
         let min_products = opts.min_products.clamp(1, max_products);
         let tol = opts.tol;
-        let warm = opts.warm_start && self.has_vector;
+        let warm = opts.warm_start && *has_vector;
         let perturbation = if opts.warm_perturbation.is_finite() {
             opts.warm_perturbation.abs()
         } else {
             0.0
         };
-        self.start(warm, perturbation);
-        self.has_vector = false;
+        Self::start(&mut v, rng, warm, perturbation);
+        *has_vector = false;
 
         let mut products = 0usize;
         let mut has_prev = false;
@@ -252,9 +301,9 @@ impl Work {
         let mut max_gain = 0.0f64;
         let mut best: Option<Candidate> = None;
         loop {
-            matvec(&self.x, &mut self.y);
+            matvec(v.x, v.y);
             products += 1;
-            let ny2 = dot(&self.y, &self.y);
+            let ny2 = dot(v.y, v.y);
             if !ny2.is_finite() {
                 return SpectralEstimate {
                     radius: f64::INFINITY,
@@ -273,7 +322,7 @@ impl Work {
                     // The kept vector is in the kernel of the new operator:
                     // start again from a random vector.
                     reseeded = true;
-                    self.rng.fill_unit(&mut self.x);
+                    rng.fill_unit(v.x);
                     if products < max_products {
                         continue;
                     }
@@ -282,14 +331,15 @@ impl Work {
                 // (J^k x_0 = 0 for a generic x_0) J is nilpotent.
                 let mut e = SpectralEstimate::zero(products);
                 e.max_gain = max_gain;
-                self.has_vector = true;
+                v.keep_x();
+                *has_vector = true;
                 return e;
             }
-            let mu = dot(&self.x, &self.y);
+            let mu = dot(v.x, v.y);
             let res1 = (ny2 - mu * mu).max(0.0).sqrt();
             let mut cand = Candidate::real(mu, res1);
             if opts.complex_pair && has_prev {
-                if let Some(pair) = self.ritz(prev_mu, prev_ny2, tol) {
+                if let Some(pair) = ritz(&mut v, prev_mu, prev_ny2, tol) {
                     if pair.rel_res < cand.rel_res {
                         cand = pair;
                     }
@@ -302,8 +352,9 @@ impl Work {
             if converged || products >= max_products {
                 // Keep J x / ||J x||, one more power step for free, for the
                 // next warm start.
-                scale_into(1.0 / gain, &self.y, &mut self.x);
-                self.has_vector = true;
+                scale_into(1.0 / gain, v.y, v.x);
+                v.keep_x();
+                *has_vector = true;
                 let b = if converged {
                     cand
                 } else {
@@ -327,40 +378,39 @@ impl Work {
                     },
                 };
             }
-            swap(&mut self.x, &mut self.x_prev);
-            swap(&mut self.y, &mut self.y_prev);
-            scale_into(1.0 / gain, &self.y_prev, &mut self.x);
+            v.advance();
+            scale_into(1.0 / gain, v.y_prev, v.x);
             prev_mu = mu;
             prev_ny2 = ny2;
             has_prev = true;
         }
     }
+}
 
-    /// The 2×2 Rayleigh–Ritz step on `span{x_prev, x}`, where
-    /// `x = J x_prev / ||J x_prev||`. `h11 = x_prev^T J x_prev` and
-    /// `m11 = ||J x_prev||^2` come from the previous step.
-    fn ritz(&mut self, h11: f64, m11: f64, tol: f64) -> Option<Candidate> {
-        // q1 = x_prev, q2 = w / beta with w = x - c x_prev.
-        let c = dot(&self.x_prev, &self.x);
-        sub_scaled(&self.x, c, &self.x_prev, &mut self.w);
-        let beta2 = dot(&self.w, &self.w);
-        let beta = beta2.sqrt();
-        if beta.is_nan() || beta <= MIN_SINE {
-            return None;
-        }
-        // J q2 = z / beta with z = J x - c J x_prev.
-        sub_scaled(&self.y, c, &self.y_prev, &mut self.z);
-        let h21 = dot(&self.w, &self.y_prev) / beta;
-        let h12 = dot(&self.x_prev, &self.z) / beta;
-        let h22 = dot(&self.w, &self.z) / beta2;
-        let m12 = dot(&self.y_prev, &self.z) / beta;
-        let m22 = dot(&self.z, &self.z) / beta2;
-        let h = [[h11, h12], [h21, h22]];
-        let g11 = m11 - h11 * h11 - h21 * h21;
-        let g12 = m12 - h11 * h12 - h21 * h22;
-        let g22 = m22 - h12 * h12 - h22 * h22;
-        Some(dominant_ritz(h, [[g11, g12], [g12, g22]], tol))
+/// The 2×2 Rayleigh–Ritz step on `span{x_prev, x}`, where
+/// `x = J x_prev / ||J x_prev||`. `h11 = x_prev^T J x_prev` and
+/// `m11 = ||J x_prev||^2` come from the previous step.
+fn ritz(v: &mut Vectors<'_>, h11: f64, m11: f64, tol: f64) -> Option<Candidate> {
+    // q1 = x_prev, q2 = w / beta with w = x - c x_prev.
+    let c = dot(v.x_prev, v.x);
+    sub_scaled(v.x, c, v.x_prev, v.w);
+    let beta2 = dot(v.w, v.w);
+    let beta = beta2.sqrt();
+    if beta.is_nan() || beta <= MIN_SINE {
+        return None;
     }
+    // J q2 = z / beta with z = J x - c J x_prev.
+    sub_scaled(v.y, c, v.y_prev, v.z);
+    let h21 = dot(v.w, v.y_prev) / beta;
+    let h12 = dot(v.x_prev, v.z) / beta;
+    let h22 = dot(v.w, v.z) / beta2;
+    let m12 = dot(v.y_prev, v.z) / beta;
+    let m22 = dot(v.z, v.z) / beta2;
+    let h = [[h11, h12], [h21, h22]];
+    let g11 = m11 - h11 * h11 - h21 * h21;
+    let g12 = m12 - h11 * h12 - h21 * h22;
+    let g22 = m22 - h12 * h12 - h22 * h22;
+    Some(dominant_ritz(h, [[g11, g12], [g12, g22]], tol))
 }
 
 /// Estimates the spectral radius and dominant eigenvalue of the linear

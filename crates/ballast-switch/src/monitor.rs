@@ -72,8 +72,8 @@ pub(crate) struct Monitor {
     opts_far: PowerOptions,
     /// The last step stayed below `FAR_FRACTION` of the reach.
     far: bool,
-    fy: Vec<f64>,
-    y: Vec<f64>,
+    /// The point of the estimate `y`, then `f(t, y)`, in one allocation.
+    point: Vec<f64>,
     latest: Option<Spectrum>,
     steps_since: usize,
     stage_ref: Option<f64>,
@@ -97,8 +97,7 @@ impl Monitor {
                 .tol(FAR_ESTIMATE_TOL)
                 .max_products(MAX_PRODUCTS),
             far: false,
-            fy: vec![0.0; n],
-            y: vec![0.0; n],
+            point: vec![0.0; 2 * n],
             latest: None,
             steps_since: 0,
             stage_ref: None,
@@ -208,15 +207,17 @@ impl Monitor {
         stage: Option<f64>,
         stats: &mut ControlStats,
     ) {
-        self.y.copy_from_slice(y);
+        let (yc, fy) = self.point.split_at_mut(y.len());
+        yc.copy_from_slice(y);
         match slope {
-            Some(f) => self.fy.copy_from_slice(f),
-            None => p.rhs(t, &self.y, &mut self.fy),
+            Some(f) => fy.copy_from_slice(f),
+            None => p.rhs(t, yc, fy),
         }
         let clock = Instant::now();
         let f = |v: &[f64], out: &mut [f64]| p.rhs(t, v, out);
         let opts = if self.far { &self.opts_far } else { &self.opts };
-        let Ok(est) = self.estimator.estimate_fd(f, &self.y, &self.fy, opts) else {
+        let (yc, fy) = self.point.split_at(y.len());
+        let Ok(est) = self.estimator.estimate_fd(f, yc, fy, opts) else {
             return;
         };
         let elapsed = clock.elapsed().as_secs_f64();

@@ -229,3 +229,41 @@ fn warm_start_after_the_dominant_mode_changed() {
         warm.radius, warm.products, cold.radius, cold.products
     );
 }
+
+/// The kept vector is the last power iterate whatever the number of
+/// products (the iterates change places in the work buffer at every
+/// step): on `J = diag(1, 2, 3)` from the start `v0`, `k` products keep
+/// `J^k v0 / ||J^k v0||` (closed form), for odd and even `k`.
+#[test]
+fn kept_vector_is_the_last_iterate_for_any_count() {
+    let diag = [1.0, 2.0, 3.0];
+    let v0 = [1.0, 1.0, 1.0];
+    for k in 1..=6 {
+        let mut est = SpectralEstimator::new(3);
+        est.set_start(&v0).unwrap();
+        let opts = PowerOptions::default()
+            .warm_perturbation(0.0)
+            .tol(0.0)
+            .min_products(k)
+            .max_products(k)
+            .complex_pair(false);
+        let e = est.estimate(
+            |v: &[f64], out: &mut [f64]| {
+                for i in 0..3 {
+                    out[i] = diag[i] * v[i];
+                }
+            },
+            &opts,
+        );
+        assert_eq!(e.products, k);
+        let expect: Vec<f64> = diag.iter().map(|d: &f64| d.powi(k as i32)).collect();
+        let norm = expect.iter().map(|x| x * x).sum::<f64>().sqrt();
+        let kept = est.vector().unwrap();
+        for i in 0..3 {
+            assert!(
+                (kept[i] - expect[i] / norm).abs() < 1e-14,
+                "k = {k}: {kept:?}"
+            );
+        }
+    }
+}
