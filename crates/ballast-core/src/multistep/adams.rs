@@ -177,13 +177,8 @@ impl<S: System> Scheme<S> for Adams {
         y: &[f64],
         slope: Option<&[f64]>,
     ) -> Result<(), StepFailure> {
-        self.e.take_slope(p, t, y, slope);
         self.stiffness = None;
-        if !self.e.dydt.iter().all(|v| v.is_finite()) {
-            return Err(StepFailure::NonFinite);
-        }
-        self.e.start(t, y);
-        Ok(())
+        self.e.start_with(p, t, y, slope)
     }
 
     fn attempt(

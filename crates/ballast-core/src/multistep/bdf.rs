@@ -178,11 +178,7 @@ impl<S: System> Scheme<S> for Bdf {
         y: &[f64],
         slope: Option<&[f64]>,
     ) -> Result<(), StepFailure> {
-        self.e.take_slope(p, t, y, slope);
-        if !self.e.dydt.iter().all(|v| v.is_finite()) {
-            return Err(StepFailure::NonFinite);
-        }
-        self.e.start(t, y);
+        self.e.start_with(p, t, y, slope)?;
         self.corrector.reset();
         self.dydt_exact = true;
         Ok(())

@@ -70,18 +70,25 @@ impl Engine {
         self.next_order
     }
 
-    /// Fills `dydt = f(t, y)`: copied from `slope` when given, else evaluated.
-    pub fn take_slope<S: crate::system::System>(
+    /// Restarts from `(t, y)` at order 1 with `dydt = f(t, y)`, copied
+    /// from `slope` when given, else evaluated; a non-finite slope is
+    /// [`StepFailure::NonFinite`](crate::scheme::StepFailure::NonFinite).
+    pub fn start_with<S: crate::system::System>(
         &mut self,
         p: &mut crate::problem::Problem<S>,
         t: f64,
         y: &[f64],
         slope: Option<&[f64]>,
-    ) {
+    ) -> Result<(), crate::scheme::StepFailure> {
         match slope {
             Some(known) => self.dydt.copy_from_slice(known),
             None => p.rhs(t, y, &mut self.dydt),
         }
+        if !self.dydt.iter().all(|v| v.is_finite()) {
+            return Err(crate::scheme::StepFailure::NonFinite);
+        }
+        self.start(t, y);
+        Ok(())
     }
 
     /// Restarts from `(t, y)` with `dydt` already holding `f(t, y)`: order 1.
