@@ -355,6 +355,37 @@ fn a_run_stiff_from_the_start_opens_on_the_implicit_scheme() {
     assert!((pair.y_final()[0] - pr.exact(10.0)[0]).abs() < 1e-5);
 }
 
+/// The prior for an implicit step that has not run yet counts the LU of the
+/// Jacobian's own structure. The Brusselator by the method of lines with
+/// N = 500 (Hairer and Wanner II, IV.1; 1000 equations, two diagonals on
+/// each side, spectral radius about 2e4 at t0) is stiff from the start: as
+/// a band (an LU of about 16 thousand flops) the pair opens on Radau IIA 5
+/// at t0; declared dense (an LU of 1000 x 1000, about 7e8 flops, some
+/// hundred times an explicit step held at the limit) it opens explicit and,
+/// over a span shorter than the held run that forces a trial, stays there.
+#[test]
+fn the_implicit_prior_counts_the_structure_of_the_lu() {
+    let case = get("brusselator-500").unwrap();
+    let span = (0.0, 0.002);
+    let opts = default_opts(1e-6, 1e-9).output(Output::Final);
+    let banded = integrate(case.system.clone(), span, &case.y0, &opts).unwrap();
+    let sw = banded.switches();
+    assert_eq!(sw.len(), 1, "{sw:?}");
+    assert_eq!((sw[0].t, sw[0].to), (0.0, Method::RadauIIA5));
+    let dense_opts = opts.jacobian_structure(ballast::Structure::Dense);
+    let dense = integrate(case.system.clone(), span, &case.y0, &dense_opts).unwrap();
+    assert!(dense.switches().is_empty(), "{:?}", dense.switches());
+    assert!(dense.stats().stability_limited > 0);
+    // Both runs agree with each other to the tolerance.
+    let diff = banded
+        .y_final()
+        .iter()
+        .zip(dense.y_final())
+        .map(|(a, b)| (a - b).abs() / b.abs().max(1e-3))
+        .fold(0.0, f64::max);
+    assert!(diff < 1e-4, "{diff}");
+}
+
 /// Asking for an analytic Jacobian from a system without one is refused
 /// at the door with a clear error.
 #[test]
