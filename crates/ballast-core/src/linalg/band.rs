@@ -51,25 +51,29 @@ impl<T: Scalar> BandLu<T> {
 
     /// Factorises `shift I - J`. Entries of `J` outside the band are ignored.
     pub fn factor(&mut self, shift: T, jac: &Jacobian) -> Result<(), StepFailure> {
-        let (n, l, u) = (self.n, self.lower, self.upper);
-        self.ab.fill(T::default());
+        let (n, l, u, ld) = (self.n, self.lower, self.upper, self.ld);
         match jac.storage() {
             Storage::Banded {
                 lower,
                 upper,
                 values,
             } if *lower <= l && *upper <= u => {
+                // Column j of J holds rows j - upper ..= j + lower at 0..w;
+                // in `ab` they start at offset l + u - upper of the column.
                 let w = lower + upper + 1;
-                for j in 0..n {
-                    let i0 = j.saturating_sub(*upper);
-                    let i1 = (j + lower + 1).min(n);
-                    for i in i0..i1 {
-                        let k = self.idx(i, j);
-                        self.ab[k] = T::of_real(-values[j * w + upper + i - j]);
+                let top = l + u - upper;
+                let columns = self.ab.chunks_exact_mut(ld).zip(values.chunks_exact(w));
+                for (j, (dst, src)) in columns.enumerate() {
+                    dst.fill(T::default());
+                    // Rows that exist: 0 <= i < n.
+                    let (r0, r1) = (upper.saturating_sub(j), w.min(upper + n - j));
+                    for (d, &v) in dst[top + r0..top + r1].iter_mut().zip(&src[r0..r1]) {
+                        *d = T::of_real(-v);
                     }
                 }
             }
             _ => {
+                self.ab.fill(T::default());
                 for j in 0..n {
                     for i in j.saturating_sub(u)..(j + l + 1).min(n) {
                         let k = self.idx(i, j);
@@ -78,9 +82,8 @@ impl<T: Scalar> BandLu<T> {
                 }
             }
         }
-        for i in 0..n {
-            let k = self.idx(i, i);
-            self.ab[k] += shift;
+        for d in self.ab[l + u..].iter_mut().step_by(ld) {
+            *d += shift;
         }
         self.factor_filled()
     }
@@ -90,12 +93,94 @@ impl<T: Scalar> BandLu<T> {
     /// are adjacent, the diagonal at offset `l + u`. The pivot is the entry
     /// of largest `|re| + |im|` (as LAPACK's `izamax` chooses it), which
     /// needs no square root.
+    ///
+    /// Narrow bands (at most 3 sub-diagonals and 6 diagonals above) take
+    /// their columns with `l` rows below through [`Self::eliminate_narrow`],
+    /// whose loops have constant bounds; the last `l` columns, and wider
+    /// bands, go through [`Self::eliminate`]. Both apply the same updates
+    /// in the same order, so the factors are bit for bit the same.
     fn factor_filled(&mut self) -> Result<(), StepFailure> {
-        let (n, u, ld) = (self.n, self.upper, self.ld);
-        let d = self.lower + u;
         // Last column touched so far by row interchanges.
         let mut ju = 0usize;
-        for j in 0..n {
+        let full = self.n.saturating_sub(self.lower);
+        let done = match (self.lower, self.lower + self.upper) {
+            (1, 1) => self.eliminate_narrow::<1, 1>(full, &mut ju)?,
+            (1, 2) => self.eliminate_narrow::<1, 2>(full, &mut ju)?,
+            (1, 3) => self.eliminate_narrow::<1, 3>(full, &mut ju)?,
+            (2, 2) => self.eliminate_narrow::<2, 2>(full, &mut ju)?,
+            (2, 3) => self.eliminate_narrow::<2, 3>(full, &mut ju)?,
+            (2, 4) => self.eliminate_narrow::<2, 4>(full, &mut ju)?,
+            (2, 5) => self.eliminate_narrow::<2, 5>(full, &mut ju)?,
+            (3, 3) => self.eliminate_narrow::<3, 3>(full, &mut ju)?,
+            (3, 4) => self.eliminate_narrow::<3, 4>(full, &mut ju)?,
+            (3, 5) => self.eliminate_narrow::<3, 5>(full, &mut ju)?,
+            (3, 6) => self.eliminate_narrow::<3, 6>(full, &mut ju)?,
+            _ => 0,
+        };
+        self.eliminate(done, &mut ju)
+    }
+
+    /// Eliminates columns `0..full` (each with `L` rows below the
+    /// diagonal) for `L` sub-diagonals and `D = l + u` diagonals above;
+    /// returns `full`. The multipliers stay in registers while the columns
+    /// to the right are updated.
+    fn eliminate_narrow<const L: usize, const D: usize>(
+        &mut self,
+        full: usize,
+        ju: &mut usize,
+    ) -> Result<usize, StepFailure> {
+        let (n, u, ld) = (self.n, self.upper, self.ld);
+        debug_assert!(L == self.lower && D == L + u && ld == L + D + 1);
+        let ab = &mut self.ab[..];
+        for j in 0..full {
+            let diag = j * ld + D;
+            let col: &[T; L] = ab[diag + 1..diag + 1 + L].try_into().unwrap();
+            let (mut p, mut best) = (0, ab[diag].pivot_size());
+            for (r, v) in col.iter().enumerate() {
+                let m = v.pivot_size();
+                if m > best {
+                    best = m;
+                    p = r + 1;
+                }
+            }
+            self.piv[j] = j + p;
+            let pivot = ab[diag + p];
+            check_pivot(pivot)?;
+            *ju = (*ju).max((j + u + p).min(n - 1));
+            if p != 0 {
+                for c in j..=*ju {
+                    // (j, c) and (j + p, c).
+                    let a = c * ld + D + j - c;
+                    ab.swap(a, a + p);
+                }
+            }
+            let inv = T::one() / pivot;
+            self.inv_diag[j] = inv;
+            let mult: &mut [T; L] = (&mut ab[diag + 1..diag + 1 + L]).try_into().unwrap();
+            for m in mult.iter_mut() {
+                *m *= inv;
+            }
+            let mult = *mult;
+            for c in j + 1..=*ju {
+                let off = c * ld + D + j - c;
+                let ujc = ab[off];
+                if ujc == T::default() {
+                    continue;
+                }
+                let t: &mut [T; L] = (&mut ab[off + 1..off + 1 + L]).try_into().unwrap();
+                for (t, &m) in t.iter_mut().zip(&mult) {
+                    *t -= m * ujc;
+                }
+            }
+        }
+        Ok(full)
+    }
+
+    /// Eliminates columns `from..n`, for any band.
+    fn eliminate(&mut self, from: usize, ju: &mut usize) -> Result<(), StepFailure> {
+        let (n, u, ld) = (self.n, self.upper, self.ld);
+        let d = self.lower + u;
+        for j in from..n {
             let km = self.lower.min(n - 1 - j);
             let col = &self.ab[j * ld + d..j * ld + d + km + 1];
             let (mut p, mut best) = (0, -1.0);
@@ -109,9 +194,9 @@ impl<T: Scalar> BandLu<T> {
             self.piv[j] = j + p;
             let pivot = col[p];
             check_pivot(pivot)?;
-            ju = ju.max((j + u + p).min(n - 1));
+            *ju = (*ju).max((j + u + p).min(n - 1));
             if p != 0 {
-                for c in j..=ju {
+                for c in j..=*ju {
                     let (a, b) = (self.idx(j, c), self.idx(j + p, c));
                     self.ab.swap(a, b);
                 }
@@ -125,7 +210,7 @@ impl<T: Scalar> BandLu<T> {
                 *m *= inv;
             }
             let mult = &*mult;
-            for c in j + 1..=ju {
+            for c in j + 1..=*ju {
                 // (j, c) relative to the start of column j + 1; c <= j + d.
                 let off = (c - j - 1) * ld + d + j - c;
                 let ujc = right[off];
@@ -319,6 +404,57 @@ mod tests {
         assert!(
             solved > 300 && swapped > 200,
             "{solved} solved, {swapped} with interchanges"
+        );
+    }
+
+    /// The narrow eliminations give bit for bit the generic one's factors,
+    /// with row interchanges, and a Jacobian stored in a narrower band is
+    /// copied as the same matrix stored dense.
+    #[test]
+    fn narrow_eliminations_equal_the_generic_one() {
+        let (mut compared, mut swapped) = (0, 0);
+        for n in 1..14usize {
+            for l in 0..5usize {
+                for u in 0..8usize {
+                    for (jl, ju) in [(l, u), (l.saturating_sub(1), u.saturating_sub(2))] {
+                        let banded = pivoting_band(n, jl, ju, (n * 31 + l * 7 + u) as u64);
+                        let mut dense = Jacobian::dense(n);
+                        for c in 0..n {
+                            for r in 0..n {
+                                dense.set(r, c, banded.get(r, c));
+                            }
+                        }
+                        let shift = 0.003;
+                        let mut fast = BandLu::<f64>::new(n, l, u);
+                        if fast.factor(shift, &banded).is_err() {
+                            continue;
+                        }
+                        // The same matrix stored dense goes through the other copy.
+                        let mut plain = BandLu::<f64>::new(n, l, u);
+                        plain.factor(shift, &dense).unwrap();
+                        // Filled by hand, then the generic elimination alone.
+                        let mut generic = BandLu::<f64>::new(n, l, u);
+                        for c in 0..n {
+                            for r in c.saturating_sub(u)..(c + l + 1).min(n) {
+                                let k = generic.idx(r, c);
+                                let d = if r == c { shift } else { 0.0 };
+                                generic.ab[k] = -dense.get(r, c) + d;
+                            }
+                        }
+                        generic.eliminate(0, &mut 0).unwrap();
+                        assert_eq!(fast.ab, generic.ab, "n {n}, l {l}, u {u}, J {jl} {ju}");
+                        assert_eq!(fast.piv, generic.piv);
+                        assert_eq!(fast.inv_diag, generic.inv_diag);
+                        assert_eq!(fast.ab, plain.ab);
+                        compared += 1;
+                        swapped += usize::from(fast.piv.iter().enumerate().any(|(i, &p)| p != i));
+                    }
+                }
+            }
+        }
+        assert!(
+            compared > 600 && swapped > 400,
+            "{compared} compared, {swapped} swapped"
         );
     }
 
