@@ -152,6 +152,14 @@ impl ErrorNorm {
         }
     }
 
+    /// The weighted RMS norm from this part's sum of squared scaled
+    /// components `sum (e_i / w_i)^2`, for callers that take several norms
+    /// in one pass (weights from [`Self::weights`]).
+    #[inline]
+    pub fn rms_of_sum(&self, local_sum: f64) -> f64 {
+        self.finish_rms(local_sum)
+    }
+
     #[inline]
     fn finish_rms(&self, local_sum: f64) -> f64 {
         let n = self.global_len.max(1) as f64;

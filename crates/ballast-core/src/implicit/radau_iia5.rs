@@ -81,6 +81,8 @@ pub struct RadauIia5 {
     y_new: Vec<f64>,
     res: Vec<f64>,
     tmp: Vec<f64>,
+    /// Error weights at the step's start, for the Newton increments.
+    wt: Vec<f64>,
     cres: Vec<Complex64>,
     iter: IterationMatrix,
     newton: NewtonControl,
@@ -126,6 +128,7 @@ impl RadauIia5 {
             y_new: vec![0.0; n],
             res: vec![0.0; n],
             tmp: vec![0.0; n],
+            wt: vec![0.0; n],
             cres: vec![Complex64::new(0.0, 0.0); n],
             iter: IterationMatrix::new(n, structure, opts, true)?,
             newton: NewtonControl::new(opts.max_newton_iters),
@@ -145,17 +148,6 @@ impl RadauIia5 {
         self.iter.after_failure();
         self.newton.reset();
         StepFailure::NewtonFailed
-    }
-
-    /// `Z = (T ⊗ I) W`.
-    fn z_from_w(&mut self) {
-        let t = &self.k.t;
-        for m in 0..self.n {
-            let (w0, w1, w2) = (self.w[0][m], self.w[1][m], self.w[2][m]);
-            for l in 0..3 {
-                self.z[l][m] = t[l][0] * w0 + t[l][1] * w1 + t[l][2] * w2;
-            }
-        }
     }
 
     /// Stage predictor: the last collocation polynomial extrapolated, or zero.
@@ -213,17 +205,24 @@ impl RadauIia5 {
             }
             self.iter.solve_real(p, &mut self.res);
             self.iter.solve_complex(p, &mut self.cres);
-            let d0 = norm.rms_at(&self.res, &self.ends.y);
+            // One pass: the update of W and Z = (T ⊗ I) W, and the three
+            // increments' norms (weights of this step's start) side by side.
+            let t = &self.k.t;
+            let mut sums = [0.0; 3];
             for m in 0..self.n {
-                self.w[0][m] += self.res[m];
-                self.w[1][m] += self.cres[m].re;
-                self.w[2][m] += self.cres[m].im;
-                self.tmp[m] = self.cres[m].re;
-                self.res[m] = self.cres[m].im;
+                let dw = [self.res[m], self.cres[m].re, self.cres[m].im];
+                let wt = self.wt[m];
+                for k in 0..3 {
+                    self.w[k][m] += dw[k];
+                    let q = dw[k] / wt;
+                    sums[k] += q * q;
+                }
+                let (w0, w1, w2) = (self.w[0][m], self.w[1][m], self.w[2][m]);
+                for l in 0..3 {
+                    self.z[l][m] = t[l][0] * w0 + t[l][1] * w1 + t[l][2] * w2;
+                }
             }
-            let d1 = norm.rms_at(&self.tmp, &self.ends.y);
-            let d2 = norm.rms_at(&self.res, &self.ends.y);
-            self.z_from_w();
+            let [d0, d1, d2] = sums.map(|s| norm.rms_of_sum(s));
             let dn = ((d0 * d0 + d1 * d1 + d2 * d2) / 3.0).sqrt();
             match self.newton.update(dn) {
                 NewtonStatus::Converged => return Ok(()),
@@ -349,6 +348,7 @@ impl<S: System> Scheme<S> for RadauIia5 {
             Ok(hf) => hf == h && self.iter.is_fresh(),
         };
         self.newton.set_tolerance(norm.rtol());
+        norm.weights(&self.ends.y, &mut self.wt);
         self.predict(h);
         self.newton_solve(p, h, norm)?;
         for m in 0..self.n {
