@@ -156,12 +156,21 @@ impl IterationMatrix {
         self.real.solve_in_place(b);
     }
 
-    /// Solves with the complex factorisation, counting the solve. Does
-    /// nothing when the cache was built without one.
-    pub fn solve_complex<S: System>(&mut self, p: &mut Problem<S>, b: &mut [Complex64]) {
-        if let Some(c) = self.complex.as_mut() {
-            p.counters.linear_solves += 1;
-            c.solve_in_place(b);
+    /// Solves with the real and the complex factorisation together (see
+    /// [`LinearSolver::solve_with_complex`]), counting two solves; without
+    /// a complex factorisation, only the real solve.
+    pub fn solve_both<S: System>(
+        &mut self,
+        p: &mut Problem<S>,
+        b: &mut [f64],
+        c: &mut [Complex64],
+    ) {
+        match self.complex.as_mut() {
+            Some(z) => {
+                p.counters.linear_solves += 2;
+                self.real.solve_with_complex(b, z, c);
+            }
+            None => self.solve_real(p, b),
         }
     }
 

@@ -203,8 +203,7 @@ impl RadauIia5 {
                 self.cres[m] =
                     Complex64::new(g1 - (al * w1 - be * w2) / h, g2 - (be * w1 + al * w2) / h);
             }
-            self.iter.solve_real(p, &mut self.res);
-            self.iter.solve_complex(p, &mut self.cres);
+            self.iter.solve_both(p, &mut self.res, &mut self.cres);
             // One pass: the update of W and Z = (T ⊗ I) W, and the three
             // increments' norms (weights of this step's start) side by side.
             let t = &self.k.t;

@@ -148,6 +148,28 @@ impl<T: Scalar> LinearSolver<T> {
     }
 }
 
+impl LinearSolver<f64> {
+    /// Solves `(shift I - J) x = b` with this real factorisation and
+    /// `(shift' I - J) z = c` with `other`, a complex one of the same
+    /// Jacobian (Radau IIA), overwriting `b` and `c`. Two band
+    /// factorisations share their sweeps ([`band::BandLu::solve_pair`]);
+    /// the results are bit for bit those of two separate solves.
+    pub fn solve_with_complex(
+        &mut self,
+        b: &mut [f64],
+        other: &mut LinearSolver<Complex64>,
+        c: &mut [Complex64],
+    ) {
+        match (self, other) {
+            (LinearSolver::Banded(r), LinearSolver::Banded(z)) => r.solve_pair(b, z, c),
+            (r, z) => {
+                r.solve_in_place(b);
+                z.solve_in_place(c);
+            }
+        }
+    }
+}
+
 /// faer's work memory, with a `Debug` that shows its size only.
 pub(crate) struct Scratch(pub(crate) faer::dyn_stack::MemBuffer);
 
