@@ -140,11 +140,16 @@ impl IterationMatrix {
             return Ok(self.h_factored);
         }
         self.h_factored = 0.0;
-        self.real.factor(shift_real(h), &self.jac)?;
-        p.counters.factorizations += 1;
-        if let Some(c) = self.complex.as_mut() {
-            c.factor(shift_complex(h), &self.jac)?;
-            p.counters.factorizations += 1;
+        match self.complex.as_mut() {
+            Some(c) => {
+                let (sr, sc) = (shift_real(h), shift_complex(h));
+                self.real.factor_with_complex(sr, c, sc, &self.jac)?;
+                p.counters.factorizations += 2;
+            }
+            None => {
+                self.real.factor(shift_real(h), &self.jac)?;
+                p.counters.factorizations += 1;
+            }
         }
         self.h_factored = h;
         Ok(h)

@@ -149,6 +149,28 @@ impl<T: Scalar> LinearSolver<T> {
 }
 
 impl LinearSolver<f64> {
+    /// Factorises `shift I - J` here and `shift_c I - J` in `other`, a
+    /// complex solver of the same structure (Radau IIA). Two band
+    /// factorisations share their sweep ([`band::BandLu::factor_pair`]);
+    /// the factors are bit for bit those of two separate factorisations.
+    pub fn factor_with_complex(
+        &mut self,
+        shift: f64,
+        other: &mut LinearSolver<Complex64>,
+        shift_c: Complex64,
+        jac: &Jacobian,
+    ) -> Result<(), StepFailure> {
+        match (self, other) {
+            (LinearSolver::Banded(r), LinearSolver::Banded(z)) => {
+                r.factor_pair(shift, z, shift_c, jac)
+            }
+            (r, z) => {
+                r.factor(shift, jac)?;
+                z.factor(shift_c, jac)
+            }
+        }
+    }
+
     /// Solves `(shift I - J) x = b` with this real factorisation and
     /// `(shift' I - J) z = c` with `other`, a complex one of the same
     /// Jacobian (Radau IIA), overwriting `b` and `c`. Two band
