@@ -4,16 +4,23 @@ CSV files the `compare` example writes (`--out DIR`).
 
     python3 tools/results/ratios.py DIR                 # best of every single method run
     python3 tools/results/ratios.py DIR --among "Dormand-Prince 5(4)" "Radau IIA 5" BDF
+    python3 tools/results/ratios.py DIR1 DIR2 ... DIRn  # the last run, with ranges over all
 
 "Best" follows the example's winner rule: the fastest run whose error is at
 most 10 x rtol or, when no run reaches that, the fastest run within 10 x the
 smallest error reached. Prints a Markdown table: time ratio, right-hand-side
-call ratio, the method compared against, and the switches of the default.
+call ratio, the method compared against, and the switches of the default,
+from the last directory; with several directories, a last column gives the
+range of the time ratio over all of them, and a summary follows: per
+tolerance and run, on how many models the goal is met (a ratio of at most
+`--goal`, default 1.2, or below 1 for the models named by `--changing`),
+how many are below 1, the median ratio and the misses.
 """
 import argparse
 import csv
 import glob
 import os
+import statistics
 
 SWITCHING = "switching DP5/Radau IIA"
 
@@ -29,18 +36,12 @@ def best(rows, rtol):
     return min(good, key=lambda r: float(r["seconds"]))
 
 
-def main():
-    ap = argparse.ArgumentParser()
-    ap.add_argument("dir")
-    ap.add_argument("--among", nargs="*", help="method labels to choose the best from")
-    a = ap.parse_args()
-    print("| model | rtol | switches | time ratio | rhs ratio | against |")
-    print("| --- | --- | ---: | ---: | ---: | --- |")
-    order = []
-    for path in sorted(glob.glob(os.path.join(a.dir, "*.csv"))):
+def ratios(directory, among):
+    """{(model, rtol): (switches, time ratio, rhs ratio, against)} of one run."""
+    out = {}
+    for path in sorted(glob.glob(os.path.join(directory, "*.csv"))):
         with open(path) as f:
-            order.append(list(csv.DictReader(f)))
-    for rows in order:
+            rows = list(csv.DictReader(f))
         for rtol in sorted({float(r["rtol"]) for r in rows}, reverse=True):
             at = [r for r in rows if float(r["rtol"]) == rtol]
             sw = [r for r in at if r["label"] == SWITCHING and r["status"] == "ok"]
@@ -48,7 +49,7 @@ def main():
                 r for r in at
                 if not r["method"].startswith("switching")
                 and r["label"] == r["method"]  # not the dense-Jacobian variants
-                and (a.among is None or r["method"] in a.among)
+                and (among is None or r["method"] in among)
             ]
             b = best(singles, rtol)
             if not sw or b is None:
@@ -56,7 +57,50 @@ def main():
             s = sw[0]
             t = float(s["seconds"]) / float(b["seconds"])
             f = int(s["rhs_evals"]) / max(int(b["rhs_evals"]), 1)
-            print(f"| {s['model']} | {rtol:.0e} | {s['switches']} | {t:.2f} | {f:.2f} | {b['method']} |")
+            out[(s["model"], rtol)] = (s["switches"], t, f, b["method"])
+    return out
+
+
+def main():
+    ap = argparse.ArgumentParser()
+    ap.add_argument("dirs", nargs="+")
+    ap.add_argument("--among", nargs="*", help="method labels to choose the best from")
+    ap.add_argument("--goal", type=float, default=1.2)
+    ap.add_argument(
+        "--changing", nargs="*", default=[],
+        help="models that change character: their goal is a ratio below 1",
+    )
+    a = ap.parse_args()
+    runs = [ratios(d, a.among) for d in a.dirs]
+    last = runs[-1]
+    several = len(runs) > 1
+    head = "| model | rtol | switches | time ratio | rhs ratio | against |"
+    print(head + (" range of time ratio |" if several else ""))
+    print("| --- | --- | ---: | ---: | ---: | --- |" + (" ---: |" if several else ""))
+    for key, (switches, t, f, against) in last.items():
+        line = f"| {key[0]} | {key[1]:.0e} | {switches} | {t:.2f} | {f:.2f} | {against} |"
+        if several:
+            seen = [r[key][1] for r in runs if key in r]
+            line += f" {min(seen):.2f}-{max(seen):.2f} |"
+        print(line)
+    if several:
+        print()
+        for rtol in sorted({k[1] for k in last}, reverse=True):
+            for i, r in enumerate(runs, 1):
+                at = {k[0]: v[1] for k, v in r.items() if k[1] == rtol}
+                ts = list(at.values())
+                met = sum(
+                    t < 1 if m in a.changing else t <= a.goal for m, t in at.items()
+                )
+                below = sum(t < 1 for t in ts)
+                missed = ", ".join(
+                    f"{m} {t:.2f}" for m, t in at.items()
+                    if (t >= 1 if m in a.changing else t > a.goal)
+                )
+                print(
+                    f"rtol {rtol:.0e}, run {i}: goal met on {met} of {len(ts)}, "
+                    f"below 1 on {below}, median {statistics.median(ts):.2f}; missed: {missed}"
+                )
 
 
 if __name__ == "__main__":
