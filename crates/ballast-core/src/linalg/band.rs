@@ -80,8 +80,8 @@ impl<T: Scalar> BandLu<T> {
         other.fill(shift_o, jac);
         let full = n.saturating_sub(l);
         // The last columns touched by interchanges, for the tails.
-        let (mut ja, mut jb) = by_width!(l, L => {
-            by_depth!(d, D => {
+        let (mut ja, mut jb) = with_const!(l, L: 1 | 2 else 3 => {
+            with_const!(d, D: 1 | 2 | 3 | 4 | 5 else 6 => {
                 let mut a = Elimination::<T, L, D>::new(self);
                 let mut b = Elimination::<U, L, D>::new(other);
                 for j in 0..full {
@@ -151,8 +151,8 @@ impl<T: Scalar> BandLu<T> {
         let mut done = 0;
         if narrow_elimination(l, d) {
             done = self.n.saturating_sub(l);
-            by_width!(l, L => {
-                by_depth!(d, D => {
+            with_const!(l, L: 1 | 2 else 3 => {
+                with_const!(d, D: 1 | 2 | 3 | 4 | 5 else 6 => {
                     let mut e = Elimination::<T, L, D>::new(self);
                     for j in 0..done {
                         e.column(j)?;
@@ -227,7 +227,7 @@ impl<T: Scalar> BandLu<T> {
     pub fn solve_in_place(&self, b: &mut [T]) {
         let (n, l, d) = (self.n, self.lower, self.lower + self.upper);
         if narrow_width(n, l) {
-            by_width!(l, L => {
+            with_const!(l, L: 1 | 2 else 3 => {
                 let mut f = Forward::<T, L>::new(self, b);
                 (0..n - L).for_each(|j| f.row(j));
                 f.finish();
@@ -236,7 +236,7 @@ impl<T: Scalar> BandLu<T> {
             self.forward_from(b, 0);
         }
         if narrow_depth(n, d) {
-            by_depth!(d, D => {
+            with_const!(d, D: 1 | 2 | 3 | 4 | 5 else 6 => {
                 let mut s = Backward::<T, D>::new(self, b);
                 (D..n).rev().for_each(|j| s.row(j));
                 s.finish();
@@ -261,7 +261,7 @@ impl<T: Scalar> BandLu<T> {
             return other.solve_in_place(c);
         }
         if narrow_width(n, l) {
-            by_width!(l, L => {
+            with_const!(l, L: 1 | 2 else 3 => {
                 let mut f = Forward::<T, L>::new(self, b);
                 let mut g = Forward::<U, L>::new(other, c);
                 for j in 0..n - L {
@@ -276,7 +276,7 @@ impl<T: Scalar> BandLu<T> {
             other.forward_from(c, 0);
         }
         if narrow_depth(n, d) {
-            by_depth!(d, D => {
+            with_const!(d, D: 1 | 2 | 3 | 4 | 5 else 6 => {
                 let mut s = Backward::<T, D>::new(self, b);
                 let mut t = Backward::<U, D>::new(other, c);
                 for j in (D..n).rev() {
@@ -338,58 +338,23 @@ fn narrow_depth(n: usize, depth: usize) -> bool {
     (1..=6).contains(&depth) && n > depth + 1
 }
 
-/// Runs `$body` with `$c` bound to the constant equal to `$l` (1 to 3).
-macro_rules! by_width {
-    ($l:expr, $c:ident => $body:block) => {
-        match $l {
-            1 => {
-                const $c: usize = 1;
+/// Runs `$body` with the constant `$c` equal to `$v`, one of the listed
+/// values, or else `$last` (callers check the range first).
+macro_rules! with_const {
+    ($v:expr, $c:ident: $($k:literal)|* else $last:literal => $body:block) => {
+        match $v {
+            $($k => {
+                const $c: usize = $k;
                 $body
-            }
-            2 => {
-                const $c: usize = 2;
-                $body
-            }
+            })*
             _ => {
-                const $c: usize = 3;
+                const $c: usize = $last;
                 $body
             }
         }
     };
 }
-
-/// Runs `$body` with `$c` bound to the constant equal to `$d` (1 to 6).
-macro_rules! by_depth {
-    ($d:expr, $c:ident => $body:block) => {
-        match $d {
-            1 => {
-                const $c: usize = 1;
-                $body
-            }
-            2 => {
-                const $c: usize = 2;
-                $body
-            }
-            3 => {
-                const $c: usize = 3;
-                $body
-            }
-            4 => {
-                const $c: usize = 4;
-                $body
-            }
-            5 => {
-                const $c: usize = 5;
-                $body
-            }
-            _ => {
-                const $c: usize = 6;
-                $body
-            }
-        }
-    };
-}
-use {by_depth, by_width};
+use with_const;
 
 /// Whether columns with `lower` rows below the diagonal are eliminated by
 /// [`Elimination`] (`depth = lower + upper` diagonals above).
