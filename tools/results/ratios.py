@@ -5,6 +5,8 @@ CSV files the `compare` example writes (`--out DIR`).
     python3 tools/results/ratios.py DIR                 # best of every single method run
     python3 tools/results/ratios.py DIR --among "Dormand-Prince 5(4)" "Radau IIA 5" BDF
     python3 tools/results/ratios.py DIR1 DIR2 ... DIRn  # the last run, with ranges over all
+    python3 tools/results/ratios.py DIR --matched       # also at equal accuracy (needs a
+                                                        # run over several tolerances)
 
 "Best" follows the example's winner rule: the fastest run whose error is at
 most 10 x rtol or, when no run reaches that, the fastest run within 10 x the
@@ -15,6 +17,14 @@ range of the time ratio over all of them, and a summary follows: per
 tolerance and run, on how many models the goal is met (a ratio of at most
 `--goal`, default 1.2, or below 1 for the models named by `--changing`),
 how many are below 1, the median ratio and the misses.
+
+With `--matched`, a second table compares at equal accuracy instead of
+equal tolerance: for each tolerance, the time each single method would
+need to reach the error the switching default reached, interpolated
+log-log between two of its own runs at neighbouring tolerances whose
+errors bracket that error (no extrapolation: a method whose runs do not
+bracket it is left out), and the default's time over the cheapest of
+those.
 """
 import argparse
 import csv
@@ -61,11 +71,60 @@ def ratios(directory, among):
     return out
 
 
+def interpolated_time(runs, target):
+    """Time to reach error `target`, log-log between runs at neighbouring
+    tolerances whose errors bracket it; None when none do."""
+    import math
+    pts = sorted(
+        (float(r["rtol"]), float(r["error"]), float(r["seconds"]))
+        for r in runs
+        if r["status"] == "ok" and float(r["error"]) > 0
+    )
+    best_t = None
+    for (_, e0, t0), (_, e1, t1) in zip(pts, pts[1:]):
+        lo, hi = min(e0, e1), max(e0, e1)
+        if not (lo <= target <= hi):
+            continue
+        if e0 == e1:
+            t = min(t0, t1)
+        else:
+            w = (math.log(target) - math.log(e0)) / (math.log(e1) - math.log(e0))
+            t = math.exp(math.log(t0) + w * (math.log(t1) - math.log(t0)))
+        best_t = t if best_t is None else min(best_t, t)
+    return best_t
+
+
+def matched(directory, among):
+    """[(model, rtol, pair error, ratio, against)] at the pair's accuracy."""
+    out = []
+    for path in sorted(glob.glob(os.path.join(directory, "*.csv"))):
+        with open(path) as f:
+            rows = list(csv.DictReader(f))
+        singles = {}
+        for r in rows:
+            if (not r["method"].startswith("switching") and r["label"] == r["method"]
+                    and (among is None or r["method"] in among)):
+                singles.setdefault(r["method"], []).append(r)
+        for s in rows:
+            if s["label"] != SWITCHING or s["status"] != "ok" or float(s["error"]) <= 0:
+                continue
+            target = float(s["error"])
+            costs = [
+                (t, m) for m, runs in singles.items()
+                if (t := interpolated_time(runs, target)) is not None
+            ]
+            if costs:
+                t, m = min(costs)
+                out.append((s["model"], float(s["rtol"]), target, float(s["seconds"]) / t, m))
+    return out
+
+
 def main():
     ap = argparse.ArgumentParser()
     ap.add_argument("dirs", nargs="+")
     ap.add_argument("--among", nargs="*", help="method labels to choose the best from")
     ap.add_argument("--goal", type=float, default=1.2)
+    ap.add_argument("--matched", action="store_true", help="also compare at equal accuracy")
     ap.add_argument(
         "--changing", nargs="*", default=[],
         help="models that change character: their goal is a ratio below 1",
@@ -83,6 +142,12 @@ def main():
             seen = [r[key][1] for r in runs if key in r]
             line += f" {min(seen):.2f}-{max(seen):.2f} |"
         print(line)
+    if a.matched:
+        print()
+        print("| model | rtol | default's error | time ratio at that error | against |")
+        print("| --- | --- | ---: | ---: | --- |")
+        for model, rtol, err, t, m in matched(a.dirs[-1], a.among):
+            print(f"| {model} | {rtol:.0e} | {err:.1e} | {t:.2f} | {m} |")
     if several:
         print()
         for rtol in sorted({k[1] for k in last}, reverse=True):
