@@ -27,8 +27,9 @@
 //! the prior.
 //!
 //! A long held run triggers a trial switch even when the prediction does
-//! not favour it; a trial measured dearer switches back (after 12 implicit
-//! steps when clearly dearer, else after `min_steps_between_switches`) and
+//! not favour it; a trial measured dearer switches back (after 4 implicit
+//! steps when eight times dearer, after 12 when twice, else after
+//! `min_steps_between_switches`) and
 //! lengthens the run needed for the next one, unless the stiffness has
 //! doubled since. No trial starts with less of the span left than the 12
 //! implicit steps it needs before it can be judged, and a repeated trial
@@ -100,6 +101,34 @@ const COSTLIER_FACTOR: f64 = 1.2;
 const CLEARLY_DEARER_FACTOR: f64 = 2.0;
 const EARLY_RETURN_STEPS: usize = 12;
 const SETTLED_GROWTH: f64 = 1.5;
+
+/// A trial that measures this many times dearer, its steps settled, ends
+/// after `FAR_DEARER_RETURN_STEPS` implicit steps: no start-up effect
+/// explains a factor of eight. Measured on Brusselator N = 40 at rtol
+/// 1e-8, where Radau IIA 5 needs steps of 0.0066 against the capped
+/// explicit 0.016 (about 20 times dearer per unit time): the trial took 14
+/// implicit steps and the run 621-636 us, now 9 steps and 569-571 us
+/// (Dormand-Prince 5(4) alone 498 us). Every other stiff or changing model
+/// of `ballast-models` at 1e-6 and 1e-8 took the same steps and switches
+/// (a shorter early return, 8 steps at 4 times dearer, had cost HIRES 9 %).
+const FAR_DEARER_FACTOR: f64 = 8.0;
+const FAR_DEARER_RETURN_STEPS: usize = 4;
+
+/// Whether a trial of the implicit scheme, `steps` implicit steps old and
+/// measured `ratio` times dearer per unit time than the capped explicit
+/// scheme, should end: once `settled` (past `min_steps_between_switches`)
+/// when dearer by `COSTLIER_FACTOR`; before that only while its step is
+/// not `growing`, after `EARLY_RETURN_STEPS` when dearer by
+/// `CLEARLY_DEARER_FACTOR` and after `FAR_DEARER_RETURN_STEPS` when dearer
+/// by `FAR_DEARER_FACTOR`.
+fn trial_is_dearer(steps: usize, settled: bool, growing: bool, ratio: f64) -> bool {
+    if settled {
+        return ratio > COSTLIER_FACTOR;
+    }
+    !growing
+        && ((steps >= EARLY_RETURN_STEPS && ratio > CLEARLY_DEARER_FACTOR)
+            || (steps >= FAR_DEARER_RETURN_STEPS && ratio > FAR_DEARER_FACTOR))
+}
 
 /// After the implicit scheme was measured dearer and left, the held run
 /// needed before the next trial grows by `PROBE_BACKOFF`, and is at least
@@ -655,7 +684,7 @@ impl<S: System> Switcher<S> {
             } else {
                 0
             };
-            if self.since_switch < EARLY_RETURN_STEPS.min(th.min_steps_between_switches) {
+            if self.since_switch < FAR_DEARER_RETURN_STEPS.min(th.min_steps_between_switches) {
                 return None;
             }
             let settled = self.since_switch >= th.min_steps_between_switches;
@@ -668,11 +697,10 @@ impl<S: System> Switcher<S> {
             let fits_again = |run: usize, explicit_rate: f64| {
                 settled && run >= th.fitting_steps_to_return && explicit_rate <= implicit_rate
             };
-            let clearly = !settled && h_next <= SETTLED_GROWTH * h_now;
+            let growing = h_next > SETTLED_GROWTH * h_now;
+            let steps = self.since_switch;
             let dearer = |explicit_rate: f64| {
-                measured
-                    && ((settled && implicit_rate > COSTLIER_FACTOR * explicit_rate)
-                        || (clearly && implicit_rate > CLEARLY_DEARER_FACTOR * explicit_rate))
+                measured && trial_is_dearer(steps, settled, growing, implicit_rate / explicit_rate)
             };
             let m = self.monitor.as_mut()?;
             let due = fits_again(self.fitting_run, explicit_rate) || dearer(explicit_rate);
@@ -786,7 +814,39 @@ impl<S: System> Switcher<S> {
 
 #[cfg(test)]
 mod tests {
-    use super::{lu_flops, room_for_trial, CostMeter, TRIAL_WASTE_FRACTION};
+    use super::{
+        lu_flops, room_for_trial, trial_is_dearer, CostMeter, CLEARLY_DEARER_FACTOR,
+        COSTLIER_FACTOR, EARLY_RETURN_STEPS, FAR_DEARER_FACTOR, FAR_DEARER_RETURN_STEPS,
+        TRIAL_WASTE_FRACTION,
+    };
+
+    /// A trial ends early only while its step has stopped growing, the
+    /// sooner the dearer it measured; once settled, at a small margin.
+    #[test]
+    fn trials_end_sooner_the_dearer_they_measure() {
+        let (far, clearly) = (FAR_DEARER_FACTOR * 1.01, CLEARLY_DEARER_FACTOR * 1.01);
+        // Far dearer: from FAR_DEARER_RETURN_STEPS on, not before.
+        assert!(!trial_is_dearer(
+            FAR_DEARER_RETURN_STEPS - 1,
+            false,
+            false,
+            far
+        ));
+        assert!(trial_is_dearer(FAR_DEARER_RETURN_STEPS, false, false, far));
+        // Clearly dearer: only from EARLY_RETURN_STEPS on.
+        assert!(!trial_is_dearer(
+            EARLY_RETURN_STEPS - 1,
+            false,
+            false,
+            clearly
+        ));
+        assert!(trial_is_dearer(EARLY_RETURN_STEPS, false, false, clearly));
+        // A growing step says little about the cost per unit time.
+        assert!(!trial_is_dearer(EARLY_RETURN_STEPS, false, true, 100.0));
+        // Settled: any ratio above COSTLIER_FACTOR, growing or not.
+        assert!(trial_is_dearer(30, true, true, COSTLIER_FACTOR * 1.01));
+        assert!(!trial_is_dearer(30, true, false, COSTLIER_FACTOR));
+    }
     use ballast_core::{SparsityPattern, Structure};
 
     /// The prior's LU counts: `2/3 n^3` dense, `2 n l (l + u)` banded, a
