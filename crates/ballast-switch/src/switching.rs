@@ -684,7 +684,12 @@ impl<S: System> Switcher<S> {
             } else {
                 0
             };
-            if self.since_switch < FAR_DEARER_RETURN_STEPS.min(th.min_steps_between_switches) {
+            let growing = h_next > SETTLED_GROWTH * h_now;
+            // Before `EARLY_RETURN_STEPS` only a far dearer trial with its
+            // steps settled may end: skip the costs' clock otherwise.
+            if self.since_switch < FAR_DEARER_RETURN_STEPS.min(th.min_steps_between_switches)
+                || (self.since_switch < EARLY_RETURN_STEPS && growing)
+            {
                 return None;
             }
             let settled = self.since_switch >= th.min_steps_between_switches;
@@ -697,7 +702,6 @@ impl<S: System> Switcher<S> {
             let fits_again = |run: usize, explicit_rate: f64| {
                 settled && run >= th.fitting_steps_to_return && explicit_rate <= implicit_rate
             };
-            let growing = h_next > SETTLED_GROWTH * h_now;
             let steps = self.since_switch;
             let dearer = |explicit_rate: f64| {
                 measured && trial_is_dearer(steps, settled, growing, implicit_rate / explicit_rate)
