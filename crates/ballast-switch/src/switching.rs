@@ -830,22 +830,14 @@ mod tests {
     #[test]
     fn trials_end_sooner_the_dearer_they_measure() {
         let (far, clearly) = (FAR_DEARER_FACTOR * 1.01, CLEARLY_DEARER_FACTOR * 1.01);
+        // A trial not settled, its step no longer growing.
+        let ends = |steps, ratio| trial_is_dearer(steps, false, false, ratio);
         // Far dearer: from FAR_DEARER_RETURN_STEPS on, not before.
-        assert!(!trial_is_dearer(
-            FAR_DEARER_RETURN_STEPS - 1,
-            false,
-            false,
-            far
-        ));
-        assert!(trial_is_dearer(FAR_DEARER_RETURN_STEPS, false, false, far));
+        assert!(!ends(FAR_DEARER_RETURN_STEPS - 1, far));
+        assert!(ends(FAR_DEARER_RETURN_STEPS, far));
         // Clearly dearer: only from EARLY_RETURN_STEPS on.
-        assert!(!trial_is_dearer(
-            EARLY_RETURN_STEPS - 1,
-            false,
-            false,
-            clearly
-        ));
-        assert!(trial_is_dearer(EARLY_RETURN_STEPS, false, false, clearly));
+        assert!(!ends(EARLY_RETURN_STEPS - 1, clearly));
+        assert!(ends(EARLY_RETURN_STEPS, clearly));
         // A growing step says little about the cost per unit time.
         assert!(!trial_is_dearer(EARLY_RETURN_STEPS, false, true, 100.0));
         // Settled: any ratio above COSTLIER_FACTOR, growing or not.
