@@ -1,5 +1,7 @@
-//! Laws over random diagonalisable matrices (proptest): the estimate never
-//! panics, never exceeds a safe bound, and warm starts save products.
+//! Laws over random diagonalisable matrices: the estimate never panics and
+//! never exceeds a safe bound (proptest), and warm starts save products
+//! (a deterministic sweep of the same family, since they do so in nearly
+//! all cases, not all).
 
 use ballast_stiffness::{spectral_radius, PowerOptions, SpectralEstimator, Termination};
 use proptest::prelude::*;
@@ -9,36 +11,51 @@ use crate::common::{
     Rng as TestRng,
 };
 
-/// A random diagonalisable matrix: size, spectrum (moduli log-uniform over
-/// `1e-2..1e4`, angles in the left half-plane or anywhere), basis `I + s G`.
-fn matrix() -> impl Strategy<Value = (nalgebra::DMatrix<f64>, f64)> {
-    (2usize..24, any::<u64>(), 0.0f64..0.4, any::<bool>()).prop_map(|(n, seed, s, left)| {
-        let mut rng = TestRng::new(seed);
-        let mut spec = Vec::new();
-        let mut k = 0;
-        while k < n {
-            let r = 10f64.powf(-2.0 + 6.0 * rng.uniform());
-            let phi = if left {
-                std::f64::consts::PI * (0.5 + rng.uniform())
-            } else {
-                std::f64::consts::TAU * rng.uniform()
-            };
-            if k + 2 <= n && rng.uniform() < 0.4 {
-                spec.push(Eig::Pair(r * phi.cos(), r * phi.sin().abs()));
-                k += 2;
-            } else {
-                spec.push(Eig::Real(r * phi.cos().signum()));
-                k += 1;
-            }
+/// A diagonalisable `n x n` matrix drawn from `rng`: spectrum (moduli
+/// log-uniform over `1e-2..1e4`, angles in the left half-plane when `left`,
+/// else anywhere; a complex pair with probability 0.4), basis `I + s G`.
+/// Returns it with the basis' condition number.
+fn family(n: usize, s: f64, left: bool, rng: &mut TestRng) -> (nalgebra::DMatrix<f64>, f64) {
+    let mut spec = Vec::new();
+    let mut k = 0;
+    while k < n {
+        let r = 10f64.powf(-2.0 + 6.0 * rng.uniform());
+        let phi = if left {
+            std::f64::consts::PI * (0.5 + rng.uniform())
+        } else {
+            std::f64::consts::TAU * rng.uniform()
+        };
+        if k + 2 <= n && rng.uniform() < 0.4 {
+            spec.push(Eig::Pair(r * phi.cos(), r * phi.sin().abs()));
+            k += 2;
+        } else {
+            spec.push(Eig::Real(r * phi.cos().signum()));
+            k += 1;
         }
-        let v = basis(n, Basis::Perturbed(s), &mut rng);
-        let kappa = cond(&v);
-        (similar(&v, &block_diagonal(&spec)), kappa)
-    })
+    }
+    let v = basis(n, Basis::Perturbed(s), rng);
+    let kappa = cond(&v);
+    (similar(&v, &block_diagonal(&spec)), kappa)
+}
+
+/// The family of [`family`] drawn deterministically from `seed`: size
+/// 2..=23, either kind of spectrum, `s` in `0..0.4`.
+fn seeded(seed: u64) -> nalgebra::DMatrix<f64> {
+    let mut rng = TestRng::new(seed * 7919 + 1);
+    let n = 2 + (rng.uniform() * 22.0) as usize;
+    let left = rng.uniform() < 0.5;
+    let s = 0.4 * rng.uniform();
+    family(n, s, left, &mut rng).0
+}
+
+/// A random diagonalisable matrix for proptest (see [`family`]).
+fn matrix() -> impl Strategy<Value = (nalgebra::DMatrix<f64>, f64)> {
+    (2usize..24, any::<u64>(), 0.0f64..0.4, any::<bool>())
+        .prop_map(|(n, seed, s, left)| family(n, s, left, &mut TestRng::new(seed)))
 }
 
 proptest! {
-    #![proptest_config(ProptestConfig { cases: 200, ..ProptestConfig::default() })]
+    #![proptest_config(ProptestConfig { cases: 20000, ..ProptestConfig::default() })]
 
     #[test]
     fn never_exceeds_a_safe_bound((a, kappa) in matrix()) {
@@ -64,26 +81,6 @@ proptest! {
             prop_assert!(e.radius <= g * slack, "{:?} vs Gershgorin {}", e, g);
         }
     }
-
-    #[test]
-    fn warm_start_on_the_same_operator_costs_fewer_products((a, _kappa) in matrix()) {
-        let n = a.nrows();
-        let opts = PowerOptions::default();
-        let mut est = SpectralEstimator::new(n);
-        let cold = est.estimate(product(&a), &opts);
-        let warm = est.estimate(product(&a), &opts);
-        // Only when the cold start found the dominant eigenvalue: a start
-        // vector nearly orthogonal to the dominant eigenvector can pass the
-        // residual test at a smaller eigenvalue first (see
-        // `cold_false_convergence_is_rare`); the warm start then costs more
-        // because it finds the right one.
-        let rho = reference_radius(&a);
-        if cold.converged && (cold.radius - rho).abs() <= 0.05 * rho {
-            prop_assert!(warm.converged, "cold {:?} warm {:?}", cold, warm);
-            prop_assert!(warm.products <= cold.products.max(opts.min_products + 1), "cold {:?} warm {:?}", cold, warm);
-            prop_assert!((warm.radius - cold.radius).abs() <= 2.0 * opts.tol * cold.radius.max(warm.radius) + 1e-300);
-        }
-    }
 }
 
 /// Same family as [`matrix`], drawn deterministically: how often does a
@@ -94,31 +91,8 @@ proptest! {
 fn cold_false_convergence_is_rare() {
     let (mut bad, mut converged, total) = (0, 0, 400u64);
     for seed in 0..total {
-        let mut rng = TestRng::new(seed * 7919 + 1);
-        let n = 2 + (rng.uniform() * 22.0) as usize;
-        let left = rng.uniform() < 0.5;
-        let s = 0.4 * rng.uniform();
-        let mut spec = Vec::new();
-        let mut k = 0;
-        while k < n {
-            let r = 10f64.powf(-2.0 + 6.0 * rng.uniform());
-            let phi = if left {
-                std::f64::consts::PI * (0.5 + rng.uniform())
-            } else {
-                std::f64::consts::TAU * rng.uniform()
-            };
-            if k + 2 <= n && rng.uniform() < 0.4 {
-                spec.push(Eig::Pair(r * phi.cos(), r * phi.sin().abs()));
-                k += 2;
-            } else {
-                spec.push(Eig::Real(r * phi.cos().signum()));
-                k += 1;
-            }
-        }
-        let a = similar(
-            &basis(n, Basis::Perturbed(s), &mut rng),
-            &block_diagonal(&spec),
-        );
+        let a = seeded(seed);
+        let n = a.nrows();
         let rho = reference_radius(&a);
         let e = spectral_radius(n, product(&a), &PowerOptions::default());
         if e.converged {
@@ -128,4 +102,55 @@ fn cold_false_convergence_is_rare() {
     }
     eprintln!("random diagonalisable, n = 2..23: {total} cold starts, {converged} converged, {bad} of them off by > 5%");
     assert!(bad * 100 <= total as usize, "{bad} of {total}");
+}
+
+/// Same family, drawn deterministically: a warm start on the operator a
+/// cold start has just converged on goes on from the cold start's vector.
+/// Among the draws whose cold start found the dominant eigenvalue (within
+/// 5%), the warm start converges, costs no more products than the cold one
+/// (or `min_products + 1`), and lands no farther from the spectral radius
+/// (up to `2 tol rho`) in nearly all cases, and costs fewer products in
+/// total. Not in every case: a cold start that stops just under the
+/// tolerance can leave the warm one a harder residual test (a non-normal
+/// complex pair, warm 50 products without converging after cold's 7), and
+/// with two dominant eigenvalues a few per cent apart the cold start can
+/// stop near the second (eigenvalues 132.25 and 127.75: cold 128.89 after
+/// two products, warm 132.04), which random draws of a property test met
+/// about once in a few thousand. Measured over 3000 draws: 2887 such
+/// cases; the warm start converged and cost no more in 2886, landed no
+/// farther in all; 6600 products against the cold starts' 20406.
+#[test]
+fn warm_starts_are_cheaper_and_no_worse() {
+    let opts = PowerOptions::default();
+    let (mut cases, mut converged, mut cheaper, mut closer) = (0usize, 0, 0, 0);
+    let (mut cold_products, mut warm_products) = (0usize, 0usize);
+    for seed in 0..3000u64 {
+        let a = seeded(seed);
+        let n = a.nrows();
+        let rho = reference_radius(&a);
+        let mut est = SpectralEstimator::new(n);
+        let cold = est.estimate(product(&a), &opts);
+        if !(cold.converged && (cold.radius - rho).abs() <= 0.05 * rho) {
+            continue;
+        }
+        let warm = est.estimate(product(&a), &opts);
+        cases += 1;
+        converged += usize::from(warm.converged);
+        cheaper += usize::from(warm.products <= cold.products.max(opts.min_products + 1));
+        closer += usize::from(
+            (warm.radius - rho).abs() <= (cold.radius - rho).abs() + 2.0 * opts.tol * rho,
+        );
+        cold_products += cold.products;
+        warm_products += warm.products;
+    }
+    let msg = format!(
+        "{cases} cases: warm converged {converged}, no dearer {cheaper}, no farther {closer}; \
+         products cold {cold_products}, warm {warm_products}"
+    );
+    eprintln!("{msg}");
+    assert!(cases > 2000, "{msg}");
+    assert!(converged * 1000 >= cases * 995, "{msg}");
+    assert!(cheaper * 1000 >= cases * 995, "{msg}");
+    assert!(closer * 1000 >= cases * 995, "{msg}");
+    assert!(warm_products * 2 < cold_products, "{msg}");
 }
