@@ -102,16 +102,17 @@ const CLEARLY_DEARER_FACTOR: f64 = 2.0;
 const EARLY_RETURN_STEPS: usize = 12;
 const SETTLED_GROWTH: f64 = 1.5;
 
-/// A trial that measures this many times dearer, its steps settled, ends
-/// after `FAR_DEARER_RETURN_STEPS` implicit steps: no start-up effect
-/// explains a factor of eight. Measured on Brusselator N = 40 at rtol
-/// 1e-8, where Radau IIA 5 needs steps of 0.0066 against the capped
-/// explicit 0.016 (about 20 times dearer per unit time): the trial lasted
-/// from t = 0.161 to 0.248, about 14 implicit steps, and the run 621-636
-/// us; now to t = 0.193, 4 steps, and 569-571 us (Dormand-Prince 5(4)
-/// alone 498 us; ratio to it in five comparison runs 1.24-1.29 -> 1.11-1.16). Every other stiff or changing model
-/// of `ballast-models` at 1e-6 and 1e-8 took the same steps and switches
-/// (a shorter early return, 8 steps at 4 times dearer, had cost HIRES 9 %).
+/// A trial that measures this many times dearer, its step no longer
+/// growing, ends after `FAR_DEARER_RETURN_STEPS` implicit steps: no
+/// start-up effect explains a factor of eight. Measured on Brusselator
+/// N = 40 at rtol 1e-8, where Radau IIA 5 needs steps of 0.0066 against the
+/// capped explicit 0.016 (about 20 times dearer per unit time): the trial
+/// lasted from t = 0.161 to 0.248, about 14 implicit steps, and the run
+/// 621-636 us; now to t = 0.193, 4 steps, and 569-571 us (Dormand-Prince
+/// 5(4) alone 498 us; the ratio to it in five comparison runs 1.24-1.29 ->
+/// 1.11-1.16). Every other stiff or changing model of `ballast-models` at
+/// 1e-6 and 1e-8 took the same steps and switches (a shorter early return,
+/// 8 steps at 4 times dearer, had cost HIRES 9 %).
 const FAR_DEARER_FACTOR: f64 = 8.0;
 const FAR_DEARER_RETURN_STEPS: usize = 4;
 
@@ -686,8 +687,8 @@ impl<S: System> Switcher<S> {
                 0
             };
             let growing = h_next > SETTLED_GROWTH * h_now;
-            // Before `EARLY_RETURN_STEPS` only a far dearer trial with its
-            // steps settled may end: skip the costs' clock otherwise.
+            // Before `EARLY_RETURN_STEPS` only a far dearer trial whose step
+            // no longer grows may end: skip the costs' clock otherwise.
             if self.since_switch < FAR_DEARER_RETURN_STEPS.min(th.min_steps_between_switches)
                 || (self.since_switch < EARLY_RETURN_STEPS && growing)
             {
