@@ -87,7 +87,21 @@ impl IterationMatrix {
         y: &[f64],
         f0: &[f64],
     ) -> Result<(), StepFailure> {
-        self.eval.evaluate(p, t, y, f0, &mut self.jac)?;
+        self.evaluate_ahead(p, t, 0.0, y, f0)
+    }
+
+    /// [`evaluate`](Self::evaluate), an analytic Jacobian taken at time
+    /// `t + ahead` (see [`JacobianEval::evaluate_ahead`]).
+    pub fn evaluate_ahead<S: System>(
+        &mut self,
+        p: &mut Problem<S>,
+        t: f64,
+        ahead: f64,
+        y: &[f64],
+        f0: &[f64],
+    ) -> Result<(), StepFailure> {
+        self.eval
+            .evaluate_ahead(p, t, ahead, y, f0, &mut self.jac)?;
         self.valid = true;
         self.fresh = true;
         self.stale = false;
@@ -104,8 +118,21 @@ impl IterationMatrix {
         y: &[f64],
         f0: &[f64],
     ) -> Result<(), StepFailure> {
+        self.ensure_jacobian_ahead(p, t, 0.0, y, f0)
+    }
+
+    /// [`ensure_jacobian`](Self::ensure_jacobian), an analytic Jacobian
+    /// taken at time `t + ahead`.
+    pub fn ensure_jacobian_ahead<S: System>(
+        &mut self,
+        p: &mut Problem<S>,
+        t: f64,
+        ahead: f64,
+        y: &[f64],
+        f0: &[f64],
+    ) -> Result<(), StepFailure> {
         if !self.valid || (self.stale && !self.fresh) {
-            self.evaluate(p, t, y, f0)?;
+            self.evaluate_ahead(p, t, ahead, y, f0)?;
         }
         Ok(())
     }

@@ -14,7 +14,17 @@
 //! polynomial of the last accepted step still holds, and a zero start at
 //! half the step costs more iterations than it saves). The factorisations
 //! are kept while `h / h_factored` is in `[1, 1.2)` and Newton contracted
-//! fast. A step whose iteration contracted at rate `theta` limits the next
+//! fast. An analytic Jacobian is taken at the step's end time, `J(t_n + h,
+//! y_n)` instead of `J(t_n, y_n)`: the same on an autonomous system, and
+//! on a time-dependent one the time of the last stage, which is the new
+//! solution (the method is stiffly accurate), so the iteration matrix is
+//! exact for it on a linear problem. On the stiffness ramp of
+//! `ballast-models` (`lambda(t)` growing 15 % across a step) that cut the
+//! right-hand-side calls from 1088 to 731 at rtol 1e-6 and from 2592 to
+//! 2120 at 1e-8, all errors below 1e-10; of the stages' times, 0.8 h saved
+//! 5 % more calls, 0.65 h (the middle of the stages, in `log lambda`) 7 %
+//! fewer. Finite-difference Jacobians stay at `t_n`, where `f(t_n, y_n)`
+//! is in hand. A step whose iteration contracted at rate `theta` limits the next
 //! step to `target / theta` times its size, `target` being the rate that
 //! would converge in `TARGET_ITERS` iterations from a start as far off as
 //! this step's.
@@ -324,7 +334,7 @@ impl<S: System> Scheme<S> for RadauIia5 {
         self.ends.ensure_f(p, &mut self.f0);
         self.h = h;
         self.iter
-            .ensure_jacobian(p, self.ends.t, &self.ends.y, &self.f0)?;
+            .ensure_jacobian_ahead(p, self.ends.t, h, &self.ends.y, &self.f0)?;
         if self.last_theta >= FAST_RATE || self.rejected_last {
             self.iter.drop_factorisation();
         }

@@ -158,3 +158,42 @@ fn dense_output_converges_at_its_order() {
         );
     }
 }
+
+/// `y' = lambda(t) y` with `lambda(t) = -10 - 100 t`, its analytic
+/// Jacobian recording the times it is asked at.
+struct TimedLinear {
+    asked: Vec<f64>,
+}
+
+impl System for TimedLinear {
+    fn rhs(&mut self, t: f64, y: &[f64], dy: &mut [f64]) {
+        dy[0] = (-10.0 - 100.0 * t) * y[0];
+    }
+    fn jacobian(&mut self, t: f64, _y: &[f64], jac: &mut crate::matrix::Jacobian) -> bool {
+        self.asked.push(t);
+        jac.set(0, 0, -10.0 - 100.0 * t);
+        true
+    }
+}
+
+#[test]
+fn radau_takes_an_analytic_jacobian_at_the_steps_end() {
+    // The step's end is the time of the last stage, the new solution: on
+    // this linear problem the iteration matrix is then exact for it, and
+    // a Jacobian of the step's start leaves the iteration a contraction
+    // rate of about h |lambda'| / |lambda| (common practice for simplified
+    // Newton; Hairer and Wanner II, IV.8). A step from t = 0.5 with
+    // h = 0.05 asks for the Jacobian at 0.55.
+    let mut p = Problem::new(TimedLinear { asked: Vec::new() }, 1);
+    let mut s = crate::build::build::<TimedLinear>(
+        crate::method::Method::RadauIIA5,
+        1,
+        &Structure::Dense,
+        &Default::default(),
+    )
+    .unwrap();
+    let norm = ErrorNorm::new(1e-4, Atol::Scalar(1e-6), 1);
+    s.start(&mut p, 0.5, &[1.0]).unwrap();
+    s.attempt(&mut p, 0.05, &norm).unwrap();
+    assert_eq!(p.system.asked, [0.55]);
+}

@@ -124,11 +124,27 @@ impl JacobianEval {
         f0: &[f64],
         jac: &mut Jacobian,
     ) -> Result<(), StepFailure> {
+        self.evaluate_ahead(p, t, 0.0, y, f0, jac)
+    }
+
+    /// [`evaluate`](Self::evaluate), except that an analytic Jacobian is
+    /// taken at time `t + ahead` (with the same `y`). Finite differences
+    /// stay at `t`, where the base value `f0` is in hand: moving them would
+    /// cost a call per Jacobian on every problem, time-dependent or not.
+    pub fn evaluate_ahead<S: System>(
+        &mut self,
+        p: &mut Problem<S>,
+        t: f64,
+        ahead: f64,
+        y: &[f64],
+        f0: &[f64],
+        jac: &mut Jacobian,
+    ) -> Result<(), StepFailure> {
         p.counters.jacobian_evals += 1;
         self.issue = None;
         if self.source != JacobianSource::FiniteDifference && self.analytic != Some(false) {
             jac.fill_zero();
-            let given = jac.dim() == self.n && p.system.jacobian(t, y, jac);
+            let given = jac.dim() == self.n && p.system.jacobian(t + ahead, y, jac);
             self.analytic = Some(given);
             if given {
                 return if all_finite(jac) {
