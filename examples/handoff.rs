@@ -38,37 +38,31 @@ fn parse(args: &[String]) -> Result<(String, Settings), String> {
         repeats: 200,
     };
     let mut name = None;
-    let mut it = args.iter();
-    while let Some(a) = it.next() {
-        let mut value = |flag: &str| {
-            it.next()
-                .cloned()
-                .ok_or_else(|| format!("{flag} needs a value"))
-        };
-        match a.as_str() {
-            "--rtol" => {
-                let v = value("--rtol")?;
-                s.rtol = v.parse().map_err(|e| format!("--rtol {v}: {e}"))?;
-            }
+    let mut rest = args.iter();
+    while let Some(flag) = rest.next() {
+        if !flag.starts_with("--") {
+            name = Some(flag.clone());
+            continue;
+        }
+        let v = rest.next().ok_or_else(|| format!("{flag} needs a value"))?;
+        let bad = |e: &dyn std::fmt::Display| format!("{flag} {v}: {e}");
+        match flag.as_str() {
+            "--rtol" => s.rtol = v.parse().map_err(|e| bad(&e))?,
+            "--repeats" => s.repeats = v.parse().map_err(|e| bad(&e))?,
             "--pair" => {
-                s.pair = match value("--pair")?.as_str() {
+                s.pair = match v.as_str() {
                     "radau" => SwitchPair::DormandPrinceRadau,
                     "bdf" => SwitchPair::AdamsBdf,
-                    other => return Err(format!("--pair {other}: radau or bdf")),
+                    _ => return Err(bad(&"radau or bdf")),
                 }
             }
             "--at" => {
-                s.at = value("--at")?
+                s.at = v
                     .split(',')
-                    .map(|v| v.trim().parse().map_err(|e| format!("--at {v}: {e}")))
+                    .map(|x| x.trim().parse().map_err(|e| bad(&e)))
                     .collect::<Result<_, _>>()?;
             }
-            "--repeats" => {
-                let v = value("--repeats")?;
-                s.repeats = v.parse().map_err(|e| format!("--repeats {v}: {e}"))?;
-            }
-            flag if flag.starts_with("--") => return Err(format!("unknown option {flag}")),
-            n => name = Some(n.to_string()),
+            _ => return Err(format!("unknown option {flag}")),
         }
     }
     let name = name.ok_or("name a model (see `cargo run --example compare`)")?;

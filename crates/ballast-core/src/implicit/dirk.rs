@@ -254,7 +254,7 @@ impl<S: System> Scheme<S> for Dirk {
         self.ends.ensure_f(p, &mut self.f0);
         self.h = h;
         self.iter
-            .ensure_jacobian(p, self.ends.t, &self.ends.y, &self.f0)?;
+            .ensure_jacobian(p, self.ends.t, 0.0, &self.ends.y, &self.f0)?;
         let h_fact = self
             .iter
             .factor(p, h, false, |hh| 1.0 / (hh * g), |_| 0.0.into())?;

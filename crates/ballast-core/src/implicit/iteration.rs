@@ -79,20 +79,9 @@ impl IterationMatrix {
         self.fresh
     }
 
-    /// Evaluates the Jacobian at `(t, y)` now (`f0 = f(t, y)`).
+    /// Evaluates the Jacobian at `(t, y)` now (`f0 = f(t, y)`), an
+    /// analytic one at time `t + ahead` (see [`JacobianEval::evaluate`]).
     pub fn evaluate<S: System>(
-        &mut self,
-        p: &mut Problem<S>,
-        t: f64,
-        y: &[f64],
-        f0: &[f64],
-    ) -> Result<(), StepFailure> {
-        self.evaluate_ahead(p, t, 0.0, y, f0)
-    }
-
-    /// [`evaluate`](Self::evaluate), an analytic Jacobian taken at time
-    /// `t + ahead` (see [`JacobianEval::evaluate_ahead`]).
-    pub fn evaluate_ahead<S: System>(
         &mut self,
         p: &mut Problem<S>,
         t: f64,
@@ -100,8 +89,7 @@ impl IterationMatrix {
         y: &[f64],
         f0: &[f64],
     ) -> Result<(), StepFailure> {
-        self.eval
-            .evaluate_ahead(p, t, ahead, y, f0, &mut self.jac)?;
+        self.eval.evaluate(p, t, ahead, y, f0, &mut self.jac)?;
         self.valid = true;
         self.fresh = true;
         self.stale = false;
@@ -109,21 +97,10 @@ impl IterationMatrix {
         Ok(())
     }
 
-    /// Evaluates the Jacobian when none is in hand or a refresh was asked
-    /// for and the one in hand is from an earlier point.
+    /// Evaluates the Jacobian (as [`Self::evaluate`]) when none is in hand
+    /// or a refresh was asked for and the one in hand is from an earlier
+    /// point.
     pub fn ensure_jacobian<S: System>(
-        &mut self,
-        p: &mut Problem<S>,
-        t: f64,
-        y: &[f64],
-        f0: &[f64],
-    ) -> Result<(), StepFailure> {
-        self.ensure_jacobian_ahead(p, t, 0.0, y, f0)
-    }
-
-    /// [`ensure_jacobian`](Self::ensure_jacobian), an analytic Jacobian
-    /// taken at time `t + ahead`.
-    pub fn ensure_jacobian_ahead<S: System>(
         &mut self,
         p: &mut Problem<S>,
         t: f64,
@@ -132,7 +109,7 @@ impl IterationMatrix {
         f0: &[f64],
     ) -> Result<(), StepFailure> {
         if !self.valid || (self.stale && !self.fresh) {
-            self.evaluate_ahead(p, t, ahead, y, f0)?;
+            self.evaluate(p, t, ahead, y, f0)?;
         }
         Ok(())
     }

@@ -334,7 +334,7 @@ impl<S: System> Scheme<S> for RadauIia5 {
         self.ends.ensure_f(p, &mut self.f0);
         self.h = h;
         self.iter
-            .ensure_jacobian_ahead(p, self.ends.t, h, &self.ends.y, &self.f0)?;
+            .ensure_jacobian(p, self.ends.t, h, &self.ends.y, &self.f0)?;
         if self.last_theta >= FAST_RATE || self.rejected_last {
             self.iter.drop_factorisation();
         }

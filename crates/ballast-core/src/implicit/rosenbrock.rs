@@ -209,7 +209,7 @@ impl<S: System> Scheme<S> for Rosenbrock {
         self.h = h;
         let (t, y) = (self.ends.t, &self.ends.y);
         if !self.iter.is_fresh() {
-            self.iter.evaluate(p, t, y, &self.f0)?;
+            self.iter.evaluate(p, t, 0.0, y, &self.f0)?;
             time_derivative(p, t, y, &self.f0, &mut self.ft);
         }
         self.iter.drop_factorisation();

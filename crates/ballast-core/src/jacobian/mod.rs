@@ -22,7 +22,7 @@
 //! let mut jac = Jacobian::for_structure(3, &s);
 //! let (y, mut f0) = ([1.0, 2.0, 3.0], [0.0; 3]);
 //! p.rhs(0.0, &y, &mut f0);
-//! ev.evaluate(&mut p, 0.0, &y, &f0, &mut jac).unwrap();
+//! ev.evaluate(&mut p, 0.0, 0.0, &y, &f0, &mut jac).unwrap();
 //! assert_eq!(p.counters.jacobian_rhs_evals, 3); // bandwidth + 1 calls, not n
 //! assert!((jac.get(1, 0) - 1.0).abs() < 1e-6 && (jac.get(1, 1) + 2.0).abs() < 1e-6);
 //! ```
@@ -115,23 +115,12 @@ impl JacobianEval {
 
     /// Writes `J(t, y)` into `jac` (laid out for this evaluator's
     /// structure). `f0 = f(t, y)` is needed for finite differences. Counts
-    /// the evaluation and its right-hand-side calls in `p.counters`.
+    /// the evaluation and its right-hand-side calls in `p.counters`. An
+    /// analytic Jacobian is taken at time `t + ahead` (with the same `y`;
+    /// `ahead = 0` for `J(t, y)`); finite differences stay at `t`, where the
+    /// base value `f0` is in hand: moving them would cost a call per
+    /// Jacobian on every problem, time-dependent or not.
     pub fn evaluate<S: System>(
-        &mut self,
-        p: &mut Problem<S>,
-        t: f64,
-        y: &[f64],
-        f0: &[f64],
-        jac: &mut Jacobian,
-    ) -> Result<(), StepFailure> {
-        self.evaluate_ahead(p, t, 0.0, y, f0, jac)
-    }
-
-    /// [`evaluate`](Self::evaluate), except that an analytic Jacobian is
-    /// taken at time `t + ahead` (with the same `y`). Finite differences
-    /// stay at `t`, where the base value `f0` is in hand: moving them would
-    /// cost a call per Jacobian on every problem, time-dependent or not.
-    pub fn evaluate_ahead<S: System>(
         &mut self,
         p: &mut Problem<S>,
         t: f64,

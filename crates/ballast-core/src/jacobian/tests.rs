@@ -61,7 +61,7 @@ proptest! {
             let mut p = Problem::new(sys, n);
             let mut ev = JacobianEval::new(n, &s, JacobianSource::Auto).unwrap();
             let mut jac = Jacobian::for_structure(n, &s);
-            ev.evaluate(&mut p, t, &y, &f0, &mut jac).unwrap();
+            ev.evaluate(&mut p, t, 0.0, &y, &f0, &mut jac).unwrap();
             prop_assert_eq!(ev.uses_analytic(), Some(false));
             prop_assert_eq!(p.counters.jacobian_rhs_evals, calls);
             prop_assert_eq!(p.counters.rhs_evals, calls);
@@ -96,7 +96,7 @@ fn analytic_jacobian_is_used_when_given() {
     tri(&a, 0.3, &y, &mut f0);
     let mut ev = JacobianEval::new(n, &Structure::Dense, JacobianSource::Auto).unwrap();
     let mut jac = Jacobian::dense(n);
-    ev.evaluate(&mut p, 0.3, &y, &f0, &mut jac).unwrap();
+    ev.evaluate(&mut p, 0.3, 0.0, &y, &f0, &mut jac).unwrap();
     assert_eq!(ev.uses_analytic(), Some(true));
     assert_eq!(p.counters.rhs_evals, 0);
     assert_eq!(p.counters.jacobian_evals, 1);
@@ -111,7 +111,7 @@ fn demanded_analytic_jacobian_that_is_missing_is_an_error() {
     let mut ev = JacobianEval::new(1, &Structure::Dense, JacobianSource::Analytic).unwrap();
     let mut jac = Jacobian::dense(1);
     assert_eq!(
-        ev.evaluate(&mut p, 0.0, &[1.0], &[-1.0], &mut jac),
+        ev.evaluate(&mut p, 0.0, 0.0, &[1.0], &[-1.0], &mut jac),
         Err(StepFailure::NewtonFailed)
     );
     assert_eq!(ev.issue(), Some(JacobianIssue::Missing));

@@ -97,7 +97,7 @@ impl Corrector {
             p.rhs(e.t, y, &mut self.f);
             &self.f
         };
-        self.matrix.evaluate(p, e.t, y, f0)?;
+        self.matrix.evaluate(p, e.t, 0.0, y, f0)?;
         self.need_jacobian = false;
         self.age = 0;
         self.newton.reset();
