@@ -22,8 +22,7 @@
 //! `ballast-models` (`lambda(t)` growing 15 % across a step) that cut the
 //! right-hand-side calls from 1088 to 731 at rtol 1e-6 and from 2592 to
 //! 2120 at 1e-8, all errors below 1e-10; of the stages' times, 0.8 h saved
-//! 5 % more calls, 0.65 h (the middle of the stages, in `log lambda`) 7 %
-//! fewer. Finite-difference Jacobians stay at `t_n`, where `f(t_n, y_n)`
+//! 5 % more calls, 0.65 h (the middle stage) 7 % fewer. Finite-difference Jacobians stay at `t_n`, where `f(t_n, y_n)`
 //! is in hand. A step whose iteration contracted at rate `theta` limits the next
 //! step to `target / theta` times its size, `target` being the rate that
 //! would converge in `TARGET_ITERS` iterations from a start as far off as

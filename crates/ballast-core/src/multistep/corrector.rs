@@ -97,6 +97,8 @@ impl Corrector {
             p.rhs(e.t, y, &mut self.f);
             &self.f
         };
+        // At t_n: a Jacobian of t_n + h cost BDF more steps on the
+        // stiffness ramp (264 against 116 at rtol 1e-6).
         self.matrix.evaluate(p, e.t, 0.0, y, f0)?;
         self.need_jacobian = false;
         self.age = 0;
