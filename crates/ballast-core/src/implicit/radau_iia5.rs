@@ -196,39 +196,56 @@ impl RadauIia5 {
         self.newton.begin();
         loop {
             for l in 0..3 {
-                for m in 0..self.n {
-                    self.tmp[m] = self.ends.y[m] + self.z[l][m];
+                for ((u, y), z) in self.tmp.iter_mut().zip(&self.ends.y).zip(&self.z[l]) {
+                    *u = y + z;
                 }
                 p.rhs(self.ends.t + self.k.c[l] * h, &self.tmp, &mut self.fz[l]);
             }
             p.counters.newton_iters += 1;
-            for m in 0..self.n {
-                let (f0, f1, f2) = (self.fz[0][m], self.fz[1][m], self.fz[2][m]);
-                let g0 = ti[0][0] * f0 + ti[0][1] * f1 + ti[0][2] * f2;
-                let g1 = ti[1][0] * f0 + ti[1][1] * f1 + ti[1][2] * f2;
-                let g2 = ti[2][0] * f0 + ti[2][1] * f1 + ti[2][2] * f2;
-                let (w0, w1, w2) = (self.w[0][m], self.w[1][m], self.w[2][m]);
-                self.res[m] = g0 - g * w0 / h;
-                self.cres[m] =
-                    Complex64::new(g1 - (al * w1 - be * w2) / h, g2 - (be * w1 + al * w2) / h);
+            // The vectors as slices of one length, so the loops below run
+            // without bounds checks or reloads of the vectors' addresses.
+            let n = self.n;
+            let [fz0, fz1, fz2] = &self.fz;
+            let (fz0, fz1, fz2) = (&fz0[..n], &fz1[..n], &fz2[..n]);
+            {
+                let [w0, w1, w2] = &self.w;
+                let (w0, w1, w2) = (&w0[..n], &w1[..n], &w2[..n]);
+                let (res, cres) = (&mut self.res[..n], &mut self.cres[..n]);
+                for m in 0..n {
+                    let (f0, f1, f2) = (fz0[m], fz1[m], fz2[m]);
+                    let g0 = ti[0][0] * f0 + ti[0][1] * f1 + ti[0][2] * f2;
+                    let g1 = ti[1][0] * f0 + ti[1][1] * f1 + ti[1][2] * f2;
+                    let g2 = ti[2][0] * f0 + ti[2][1] * f1 + ti[2][2] * f2;
+                    let (w0, w1, w2) = (w0[m], w1[m], w2[m]);
+                    res[m] = g0 - g * w0 / h;
+                    cres[m] =
+                        Complex64::new(g1 - (al * w1 - be * w2) / h, g2 - (be * w1 + al * w2) / h);
+                }
             }
             self.iter.solve_both(p, &mut self.res, &mut self.cres);
             // One pass: the update of W and Z = (T ⊗ I) W, and the three
             // increments' norms (weights of this step's start) side by side.
             let t = &self.k.t;
             let mut sums = [0.0; 3];
-            for m in 0..self.n {
-                let dw = [self.res[m], self.cres[m].re, self.cres[m].im];
-                let wt = self.wt[m];
+            let [w0, w1, w2] = &mut self.w;
+            let (w0, w1, w2) = (&mut w0[..n], &mut w1[..n], &mut w2[..n]);
+            let [z0, z1, z2] = &mut self.z;
+            let (z0, z1, z2) = (&mut z0[..n], &mut z1[..n], &mut z2[..n]);
+            let (res, cres, wts) = (&self.res[..n], &self.cres[..n], &self.wt[..n]);
+            for m in 0..n {
+                let dw = [res[m], cres[m].re, cres[m].im];
+                let wt = wts[m];
+                w0[m] += dw[0];
+                w1[m] += dw[1];
+                w2[m] += dw[2];
                 for k in 0..3 {
-                    self.w[k][m] += dw[k];
                     let q = dw[k] / wt;
                     sums[k] += q * q;
                 }
-                let (w0, w1, w2) = (self.w[0][m], self.w[1][m], self.w[2][m]);
-                for l in 0..3 {
-                    self.z[l][m] = t[l][0] * w0 + t[l][1] * w1 + t[l][2] * w2;
-                }
+                let (a, b, c) = (w0[m], w1[m], w2[m]);
+                z0[m] = t[0][0] * a + t[0][1] * b + t[0][2] * c;
+                z1[m] = t[1][0] * a + t[1][1] * b + t[1][2] * c;
+                z2[m] = t[2][0] * a + t[2][1] * b + t[2][2] * c;
             }
             let [d0, d1, d2] = sums.map(|s| norm.rms_of_sum(s));
             let dn = ((d0 * d0 + d1 * d1 + d2 * d2) / 3.0).sqrt();
@@ -248,11 +265,16 @@ impl RadauIia5 {
         norm: &ErrorNorm,
         use_tmp: bool,
     ) -> f64 {
-        let dd = self.k.dd;
-        for m in 0..self.n {
-            let f = if use_tmp { self.tmp[m] } else { self.f0[m] };
-            self.res[m] =
-                f + (dd[0] * self.z[0][m] + dd[1] * self.z[1][m] + dd[2] * self.z[2][m]) / h;
+        let (dd, n) = (self.k.dd, self.n);
+        let f = if use_tmp {
+            &self.tmp[..n]
+        } else {
+            &self.f0[..n]
+        };
+        let [z0, z1, z2] = &self.z;
+        let (z0, z1, z2) = (&z0[..n], &z1[..n], &z2[..n]);
+        for (m, r) in self.res[..n].iter_mut().enumerate() {
+            *r = f[m] + (dd[0] * z0[m] + dd[1] * z1[m] + dd[2] * z2[m]) / h;
         }
         self.iter.solve_real(p, &mut self.res);
         norm.rms(&self.res, &self.ends.y, &self.y_new)
