@@ -5,6 +5,7 @@
 //! cargo run --release --example compare -- robertson     # one model
 //! cargo run --release --example compare -- all           # every model, then a summary
 //!     [--rtol 1e-4,1e-6,1e-8] [--repeats 5] [--out target/compare] [--own-reference]
+//!     [--jacobian-refresh-rate 1e-3,0.03,..]
 //! ```
 //!
 //! For each model it runs every sensible method (and the switching
@@ -16,7 +17,13 @@
 //! It writes `work-precision-<model>.svg` and `<model>.csv` to the output
 //! directory. With `--own-reference` the reference is not the model's but
 //! computed by the study (a much tighter run of a high-order method, named
-//! in the output), as it would be for a model of your own.
+//! in the output), as it would be for a model of your own. With
+//! `--jacobian-refresh-rate r` every contender runs with
+//! `Options::jacobian_refresh_rate(r)` (the Newton contraction rate above
+//! which the implicit one-step schemes evaluate a new Jacobian; default
+//! 1e-3); each further rate of the list adds a variant of every contender
+//! that is not explicit, labelled `[refresh r]`, run side by side with the
+//! rest: how that trade of Jacobians against iterations falls on a model.
 
 #[allow(dead_code)] // `lineup::short` serves the benches
 mod lineup;
@@ -35,6 +42,9 @@ struct Settings {
     out: PathBuf,
     /// Compute the reference with a tighter run instead of using the model's.
     own_reference: bool,
+    /// `Options::jacobian_refresh_rate` for every contender (the first),
+    /// and for variants of the implicit ones (the others).
+    refresh_rates: Vec<f64>,
 }
 
 fn parse(args: &[String]) -> Result<(Vec<String>, Settings), String> {
@@ -43,6 +53,7 @@ fn parse(args: &[String]) -> Result<(Vec<String>, Settings), String> {
         repeats: 5,
         out: PathBuf::from("target/compare"),
         own_reference: false,
+        refresh_rates: Vec::new(),
     };
     let mut names = Vec::new();
     let mut it = args.iter();
@@ -70,6 +81,16 @@ fn parse(args: &[String]) -> Result<(Vec<String>, Settings), String> {
             }
             "--out" => s.out = PathBuf::from(value("--out")?),
             "--own-reference" => s.own_reference = true,
+            "--jacobian-refresh-rate" => {
+                s.refresh_rates = value("--jacobian-refresh-rate")?
+                    .split(',')
+                    .map(|v| match v.trim().parse::<f64>() {
+                        Ok(r) if r > 0.0 && r <= 1.0 => Ok(r),
+                        Ok(_) => Err(format!("--jacobian-refresh-rate {v}: must lie in (0, 1]")),
+                        Err(e) => Err(format!("--jacobian-refresh-rate {v}: {e}")),
+                    })
+                    .collect::<Result<_, _>>()?;
+            }
             flag if flag.starts_with("--") => return Err(format!("unknown option {flag}")),
             name => names.push(name.to_string()),
         }
@@ -79,7 +100,8 @@ fn parse(args: &[String]) -> Result<(Vec<String>, Settings), String> {
 
 fn list() {
     println!("usage: cargo run --release --example compare -- <model>|all");
-    println!("       [--rtol a,b,..] [--repeats n] [--out dir] [--own-reference]\n");
+    println!("       [--rtol a,b,..] [--repeats n] [--out dir] [--own-reference]");
+    println!("       [--jacobian-refresh-rate r,..]\n");
     println!("models:");
     for case in ballast_models::all() {
         println!(
@@ -114,7 +136,18 @@ fn study(case: &Case, s: &Settings) -> Result<Report, String> {
         study = study.reference(case.reference.y.clone(), &source);
     }
     for e in entries {
-        study = study.contender(&e.label, e.options);
+        let Some((&first, others)) = s.refresh_rates.split_first() else {
+            study = study.contender(&e.label, e.options);
+            continue;
+        };
+        study = study.contender(&e.label, e.options.clone().jacobian_refresh_rate(first));
+        // Dense-Jacobian variants are slow and need no second rate.
+        if refresh_rate_applies(e.options.get_method()) && !e.label.ends_with(DENSE_SUFFIX) {
+            for &r in others {
+                let label = format!("{} [refresh {r}]", e.label);
+                study = study.contender(&label, e.options.clone().jacobian_refresh_rate(r));
+            }
+        }
     }
     let report = study.run().map_err(|e| e.to_string())?;
     println!("{}: {}\n", case.name, case.description);
@@ -145,6 +178,22 @@ fn study(case: &Case, s: &Settings) -> Result<Report, String> {
     }
     println!();
     Ok(report)
+}
+
+/// Whether `Options::jacobian_refresh_rate` changes what `method` does:
+/// Radau IIA 5, the diagonally implicit schemes and the pair built on
+/// Radau IIA 5 keep a Jacobian while Newton contracts fast; Rosenbrock
+/// schemes evaluate one every step and BDF keeps its own rule.
+fn refresh_rate_applies(method: Method) -> bool {
+    matches!(
+        method,
+        Method::RadauIIA5
+            | Method::Esdirk43
+            | Method::TrBdf2
+            | Method::BackwardEuler
+            | Method::Trapezoid
+            | Method::Switching(SwitchPair::DormandPrinceRadau)
+    )
 }
 
 /// A ratio with two significant digits.
