@@ -22,8 +22,9 @@
 //! `Options::jacobian_refresh_rate(r)` (the Newton contraction rate above
 //! which the implicit one-step schemes evaluate a new Jacobian; default
 //! 1e-3); each further rate of the list adds a variant of every contender
-//! that is not explicit, labelled `[refresh r]`, run side by side with the
-//! rest: how that trade of Jacobians against iterations falls on a model.
+//! the rate affects (Radau IIA 5, the diagonally implicit schemes, the
+//! default pair), labelled `[refresh r]`, run side by side with the rest:
+//! how that trade of Jacobians against iterations falls on a model.
 
 #[allow(dead_code)] // `lineup::short` serves the benches
 mod lineup;
@@ -43,7 +44,7 @@ struct Settings {
     /// Compute the reference with a tighter run instead of using the model's.
     own_reference: bool,
     /// `Options::jacobian_refresh_rate` for every contender (the first),
-    /// and for variants of the implicit ones (the others).
+    /// and for variants of those it affects (the others).
     refresh_rates: Vec<f64>,
 }
 

@@ -110,8 +110,8 @@ impl<T: Scalar> BandLu<T> {
                 let top = l + u - upper;
                 // One pass of zeros over the whole storage, not one per
                 // column: a column is a few entries, and a fill call per
-                // column cost more than the zeros (3 % of Radau IIA 5 on
-                // the 1000-equation Brusselator).
+                // column cost more than the zeros (about 2 % of Radau IIA 5
+                // on the 1000-equation Brusselator).
                 self.ab.fill(T::default());
                 let columns = self.ab.chunks_exact_mut(ld).zip(values.chunks_exact(w));
                 for (j, (dst, src)) in columns.enumerate() {
